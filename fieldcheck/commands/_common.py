@@ -26,6 +26,8 @@ def add_sweep_arguments(p: argparse.ArgumentParser) -> None:
     g.add_argument("--z0", type=float, default=None, metavar="OHM",
                    help="CSV only: reference impedance (default 50 ohm)")
     r = p.add_argument_group("moving the reference plane to the antenna terminals")
+    r.add_argument("--list-cables", action=_ListCables, nargs=0,
+                   help="print the built-in cable types with their typical values and exit")
     r.add_argument("--cable", default=None, metavar="TYPE:LENGTH",
                    help="remove a coaxial cable, e.g. RG58:5m or RG213:12.5m "
                         "(see --list-cables), or custom:LENGTH with --cable-vf/--cable-loss/--cable-z0")
@@ -43,6 +45,14 @@ def add_sweep_arguments(p: argparse.ArgumentParser) -> None:
                         "0.35m (length in free-space metres unless --delay-vf is given)")
     r.add_argument("--delay-vf", type=float, default=1.0, metavar="VF",
                    help="velocity factor for a --delay given as a length (default 1.0)")
+
+
+class _ListCables(argparse.Action):
+    def __call__(self, parser, namespace, values, option_string=None):
+        from ..refplane import list_cables_text
+
+        print(list_cables_text())
+        parser.exit(0)
 
 
 def load_sweep(args: argparse.Namespace, path: str):
