@@ -18,6 +18,9 @@ from .errors import FieldcheckError
 #: Subcommand modules in the order ``--help`` lists them.
 COMMAND_MODULES = (
     "inspect",
+    "locate",
+    "wheeler",
+    "predict",
 )
 
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT = 0, 1, 2
