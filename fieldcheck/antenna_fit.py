@@ -1,0 +1,325 @@
+"""Fit the antenna model to a measured sweep and explain the result.
+
+:func:`fit_antenna` turns a sweep at the antenna terminals (reference plane
+already moved) plus an antenna description into an :class:`AntennaFit`: the
+fitted electrical length, loss, feed capacitance and residual delay with
+uncertainties, and what follows from them (resonance at the terminals, length
+error, end correction per end, radiation efficiency), plus the model-adequacy
+verdict of :mod:`fieldcheck.fit`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field, replace
+
+import numpy as np
+from scipy.optimize import brentq
+
+from . import features
+from .constants import C0_M_PER_S, TWO_PI
+from .errors import FitError
+from .fit import FitResult, ParamSpec, fit_reflection
+from .model import AntennaModel, model_from_description
+from .physics.surface import KL_MAX, KL_MIN, default_surface
+from .sweep import Sweep, gamma_from_impedance
+
+#: Fit window around the first resonance, as a frequency ratio either side.  A
+#: dipole's VSWR-2 bandwidth is a few percent to ~15 %; +-30 % keeps the whole
+#: resonance and its shoulders, where length, loss and feed C separate, without
+#: reaching the anti-resonance (common practice, no source).
+WINDOW_RATIO = 1.3
+#: Electrical length may move this far (ratio) from the start value in the fit.
+LENGTH_FREEDOM = 1.35
+#: Bounds on the loss resistance and feed capacitance (generous: a bad joint can
+#: be tens of ohms; feed hardware rarely tens of pF).
+R_LOSS_MAX_OHM = 300.0
+C_FEED_MAX_F = 50e-12
+
+
+@dataclass(frozen=True)
+class Derived:
+    """A derived quantity with its standard uncertainty."""
+
+    value: float
+    stderr: float
+    unit: str
+
+    def to_dict(self) -> dict:
+        return {"value": self.value, "stderr": self.stderr, "unit": self.unit}
+
+
+@dataclass(frozen=True)
+class AntennaFit:
+    """Result of fitting one sweep.
+
+    Attributes
+    ----------
+    fit : FitResult
+        Raw fit (parameters length_m, r_loss_ohm, c_feed_f, delay_s).
+    model : AntennaModel
+        The fixed part of the model used.
+    built_length_m : float
+        As-built electrical-model length: dipole tip to tip (2 arms + gap), or monopole height.
+    n_ends : int
+        Free ends (2 for a dipole, 1 for a monopole).
+    f_res_hz : Derived
+        First series resonance (X = 0) of the fitted antenna at its own terminals.
+    f_match_hz : float
+        Frequency of the best match seen by the feed line (model, no residual delay).
+    r_at_res_ohm, r_rad_ohm : float
+        Terminal resistance and its radiation part at ``f_res_hz``.
+    efficiency : Derived
+        Radiation efficiency R_rad / (R_rad + R_loss) at resonance (IEEE Std 145-2013 definition).
+    length_error_m : Derived
+        Electrical minus as-built length (positive: electrically longer than built).
+    measured_crossing_hz : float or None
+        X = 0 crossing read straight off the trace (model free), nearest the fit's resonance.
+    resonance_in_sweep : bool
+        False when the fitted resonance lies outside the swept band (advice extrapolates).
+    notes : tuple of str
+    """
+
+    fit: FitResult
+    model: AntennaModel
+    built_length_m: float
+    n_ends: int
+    f_res_hz: Derived
+    f_match_hz: float
+    r_at_res_ohm: float
+    r_rad_ohm: float
+    efficiency: Derived
+    length_error_m: Derived
+    measured_crossing_hz: float | None
+    resonance_in_sweep: bool
+    sweep_span_hz: tuple
+    notes: tuple = field(default=())
+
+    @property
+    def length_m(self) -> Derived:
+        return Derived(self.fit.values["length_m"], self.fit.stderr["length_m"], "m")
+
+    @property
+    def end_correction_per_end_m(self) -> Derived:
+        e = self.length_error_m
+        return Derived(e.value / self.n_ends, e.stderr / self.n_ends, "m")
+
+    def to_dict(self) -> dict:
+        return {
+            "fit": self.fit.to_dict(),
+            "built_length_m": self.built_length_m,
+            "electrical_length_m": self.length_m.to_dict(),
+            "length_error_m": self.length_error_m.to_dict(),
+            "end_correction_per_end_m": self.end_correction_per_end_m.to_dict(),
+            "f_res_hz": self.f_res_hz.to_dict(),
+            "f_match_hz": self.f_match_hz,
+            "r_at_res_ohm": self.r_at_res_ohm,
+            "r_rad_ohm": self.r_rad_ohm,
+            "efficiency": self.efficiency.to_dict(),
+            "measured_crossing_hz": self.measured_crossing_hz,
+            "resonance_in_sweep": self.resonance_in_sweep,
+            "notes": list(self.notes),
+        }
+
+
+def model_resonance_hz(model: AntennaModel, length_m: float, r_loss_ohm: float, c_feed_f: float,
+                       f_guess_hz: float) -> float:
+    """First series resonance (X rising through 0) of the model near ``f_guess_hz``, Hz.
+
+    Searches kL 2.0..3.6 (the half-wave region) and returns the crossing closest
+    to the guess; raises FitError if there is none.
+    """
+    f_lo = 2.0 * C0_M_PER_S / (TWO_PI * length_m * _len_factor(model))
+    f_hi = 3.6 * C0_M_PER_S / (TWO_PI * length_m * _len_factor(model))
+    f = np.linspace(f_lo, f_hi, 321)
+    x = model.z_terminals(f, length_m, r_loss_ohm, c_feed_f).imag
+    idx = np.flatnonzero((x[:-1] < 0) & (x[1:] >= 0))
+    if idx.size == 0:
+        raise FitError("the fitted model has no series resonance in the half-wave region")
+    i = idx[np.argmin(np.abs(f[idx] - f_guess_hz))]
+    fx = lambda t: float(model.z_terminals(np.array([t]), length_m, r_loss_ohm, c_feed_f)[0].imag)  # noqa: E731
+    return brentq(fx, f[i], f[i + 1], xtol=1e-9 * f[i])
+
+
+def model_match_hz(model: AntennaModel, length_m: float, r_loss_ohm: float, c_feed_f: float,
+                   f_guess_hz: float) -> float:
+    """Frequency of minimum |Gamma| seen by the feed line near ``f_guess_hz``, Hz."""
+    f = f_guess_hz * np.linspace(0.85, 1.15, 601)
+    m = np.abs(model.gamma(f, length_m, r_loss_ohm, c_feed_f))
+    i = int(np.clip(np.argmin(m), 1, f.size - 2))
+    # Parabolic refinement of the minimum of |Gamma|^2 through three samples.
+    y0, y1, y2 = m[i - 1] ** 2, m[i] ** 2, m[i + 1] ** 2
+    den = y0 - 2 * y1 + y2
+    t = 0.5 * (y0 - y2) / den if den > 0 else 0.0
+    return float(f[i] + t * (f[1] - f[0]))
+
+
+def _len_factor(model: AntennaModel) -> float:
+    """Dipole-equivalent length over model length (a monopole of height h images to 2 h)."""
+    return 2.0 if model.installation.kind == "monopole" else 1.0
+
+
+def _start_length(model: AntennaModel, f_res_hz: float, built_m: float) -> float:
+    """Electrical length whose first resonance is at ``f_res_hz`` (free-space surface)."""
+    surf = default_surface()
+    k = _len_factor(model)
+    length = built_m
+    for _ in range(3):  # L/a changes a little with L; three passes converge
+        la = np.clip(k * length / model.radius_m, 100.0, 20_000.0)
+        length = surf.first_resonance_kl(la) * C0_M_PER_S / (TWO_PI * f_res_hz * k)
+    return float(length)
+
+
+def fit_antenna(sweep: Sweep, desc, *, model: AntennaModel | None = None) -> AntennaFit:
+    """Fit the antenna model to ``sweep`` (already at the antenna/balun terminals).
+
+    Parameters
+    ----------
+    sweep : Sweep
+        Measured sweep with the reference plane at the balun input (or at the
+        antenna terminals when there is no balun).
+    desc : fieldcheck.antenna.Description
+        What was built; its physical inputs stay fixed.
+    model : AntennaModel, optional
+        Override the model built from ``desc``.
+
+    Raises
+    ------
+    FitError
+        No usable resonance near the as-built design, or the fit fails.
+    """
+    model = model or model_from_description(desc)
+    built = desc.antenna.total_length_m if desc.antenna.form == "dipole" else desc.antenna.arm_length_m
+    n_ends = 2 if desc.antenna.form == "dipole" else 1
+    notes = []
+    g_line = gamma_from_impedance(sweep.z_ohm, model.z0_ohm)
+    z_ant = sweep.z_ohm * model.balun_ratio
+    f_all = sweep.f_hz
+
+    f_design = model_resonance_hz(model, built, 0.0, 0.0, C0_M_PER_S / (2 * built * _len_factor(model)))
+    f_start, crossing = _start_frequency(f_all, z_ant, g_line, f_design, notes)
+    length0 = _start_length(model, f_start, built)
+
+    lo_len, hi_len = length0 / LENGTH_FREEDOM, length0 * LENGTH_FREEDOM
+    k = _len_factor(model)
+    kl_per_hz_m = TWO_PI * k / C0_M_PER_S
+    f_lo = max(f_start / WINDOW_RATIO, (KL_MIN * 1.01) / (kl_per_hz_m * lo_len))
+    f_hi = min(f_start * WINDOW_RATIO, (KL_MAX * 0.99) / (kl_per_hz_m * hi_len))
+    sel = (f_all >= f_lo) & (f_all <= f_hi)
+    if np.count_nonzero(sel) < 8:
+        raise FitError(
+            f"only {np.count_nonzero(sel)} sweep points lie within the fit window "
+            f"{f_lo / 1e6:.4g}..{f_hi / 1e6:.4g} MHz around the expected resonance; "
+            "sweep at least +-20 % around it with 100 or more points")
+    if np.count_nonzero(sel) < f_all.size:
+        notes.append(f"fitted {np.count_nonzero(sel)} of {f_all.size} points "
+                     f"({f_all[sel][0] / 1e6:.6g}..{f_all[sel][-1] / 1e6:.6g} MHz) around the resonance")
+    f, g = f_all[sel], g_line[sel]
+
+    tau_max = 0.25 / f_start  # a half-turn of phase either way at the resonance
+    if model.installation.kind == "horizontal":
+        model = replace(model, mutual_ref_length_m=length0)
+    res = _fit_once(model, f, g, length0, lo_len, hi_len, tau_max)
+    if model.installation.kind == "horizontal":
+        # Re-evaluate the ground-image mutual impedance at the fitted length.
+        model = replace(model, mutual_ref_length_m=res.values["length_m"])
+        res = _fit_once(model, f, g, res.values["length_m"], lo_len, hi_len, tau_max,
+                        start=res.values)
+    if res.at_bounds:
+        notes.append("parameters at a bound of the fit: " + ", ".join(res.at_bounds)
+                     + " (their uncertainties are not meaningful)")
+    return _derive(res, model, built, n_ends, f_all, crossing, notes)
+
+
+def _start_frequency(f, z_ant, g_line, f_design, notes):
+    """Resonance to start from: the measured series crossing nearest the design, else the best match."""
+    crossings = [c for c in features.reactance_crossings(f, z_ant) if c.kind == "series"]
+    near = [c for c in crossings if 0.55 < c.f_hz / f_design < 1.8]
+    if near:
+        c = min(near, key=lambda c: abs(np.log(c.f_hz / f_design)))
+        return c.f_hz, c.f_hz
+    i = int(np.argmin(np.abs(g_line)))
+    if np.abs(g_line[i]) < 0.8 and 0.55 < f[i] / f_design < 1.8 and 0 < i < f.size - 1:
+        notes.append("no reactance zero crossing in the sweep: started from the best match")
+        return float(f[i]), None
+    if f[0] <= f_design <= f[-1] or 0.7 < f_design / f[-1] < 1.4 or 0.7 < f[0] / f_design < 1.4:
+        notes.append("no resonance or clear match in the sweep: started from the as-built design")
+        return float(np.clip(f_design, f[0], f[-1])), None
+    raise FitError(
+        f"no resonance of this antenna is in or near the sweep ({f[0] / 1e6:.6g}..{f[-1] / 1e6:.6g} MHz; "
+        f"as built it should resonate near {f_design / 1e6:.6g} MHz); check the antenna description, "
+        "re-sweep around the expected resonance, or run 'fieldcheck diagnose'")
+
+
+def _fit_once(model, f, g, length0, lo_len, hi_len, tau_max, start=None):
+    start = start or {}
+    l0 = float(np.clip(start.get("length_m", length0), lo_len, hi_len))
+    params = [
+        ParamSpec("length_m", "m", l0, lo_len, hi_len),
+        ParamSpec("r_loss_ohm", "ohm", float(np.clip(start.get("r_loss_ohm", 0.5), 0, R_LOSS_MAX_OHM)),
+                  0.0, R_LOSS_MAX_OHM),
+        ParamSpec("c_feed_f", "F", float(np.clip(start.get("c_feed_f", 0.2e-12), 0, C_FEED_MAX_F)),
+                  0.0, C_FEED_MAX_F),
+        ParamSpec("delay_s", "s", float(np.clip(start.get("delay_s", 0.0), -tau_max, tau_max)),
+                  -tau_max, tau_max),
+    ]
+    fun = model.gamma_from_values
+    best = fit_reflection(f, g, fun, params)
+    if start or best.adequacy == "good":
+        return best
+    # A residual delay rotates the trace; when the first start did not land on
+    # a noise-level fit, try starts on both sides of zero too.
+    for tau in (-tau_max / 3, tau_max / 3):
+        trial = [p if p.name != "delay_s" else replace(p, initial=tau) for p in params]
+        r = fit_reflection(f, g, fun, trial, noise_sigma=best.noise_sigma)
+        if r.chi2 < best.chi2 * (1 - 1e-6):
+            best = r
+    return best
+
+
+def _derive(res: FitResult, model, built, n_ends, f_all, crossing, notes) -> AntennaFit:
+    v, cov, names = res.values, res.covariance, res.names
+    L, R, C = v["length_m"], v["r_loss_ohm"], v["c_feed_f"]
+    f_guess = crossing or C0_M_PER_S / (2 * L * _len_factor(model))
+    f_res = model_resonance_hz(model, L, R, C, f_guess)
+    f_match = model_match_hz(model, L, R, C, f_res)
+    z_res = model.z_terminals(np.array([f_res]), L, R, C)[0]
+    r_rad = float(model.z_wire(np.array([f_res]), L)[0].real)
+    eff = r_rad / (r_rad + R)
+
+    def f_res_of(p):
+        return model_resonance_hz(model, p["length_m"], p["r_loss_ohm"], p["c_feed_f"], f_res)
+
+    def eff_of(p):
+        rr = float(model.z_wire(np.array([f_res]), p["length_m"])[0].real)
+        return rr / (rr + p["r_loss_ohm"])
+
+    sig_f = _propagate(f_res_of, v, names, cov, res.stderr)
+    sig_e = _propagate(eff_of, v, names, cov, res.stderr)
+    in_sweep = f_all[0] <= f_res <= f_all[-1]
+    if not in_sweep:
+        notes.append(f"the fitted resonance {f_res / 1e6:.6g} MHz lies outside the sweep "
+                     f"({f_all[0] / 1e6:.6g}..{f_all[-1] / 1e6:.6g} MHz): results extrapolate")
+    return AntennaFit(
+        fit=res, model=model, built_length_m=float(built), n_ends=n_ends,
+        f_res_hz=Derived(float(f_res), sig_f, "Hz"),
+        f_match_hz=f_match,
+        r_at_res_ohm=float(z_res.real), r_rad_ohm=r_rad,
+        efficiency=Derived(float(eff), sig_e, "1"),
+        length_error_m=Derived(float(L - built), res.stderr["length_m"], "m"),
+        measured_crossing_hz=crossing,
+        resonance_in_sweep=bool(in_sweep),
+        sweep_span_hz=(float(f_all[0]), float(f_all[-1])),
+        notes=tuple(notes),
+    )
+
+
+def _propagate(fun, values, names, cov, stderr) -> float:
+    """Standard error of ``fun(values)`` by first-order (delta-method) propagation."""
+    grad = np.zeros(len(names))
+    base = fun(values)
+    for i, n in enumerate(names):
+        h = max(stderr[n], abs(values[n]) * 1e-6, 1e-18) * 0.1
+        p = dict(values)
+        p[n] = values[n] + h
+        grad[i] = (fun(p) - base) / h
+    return float(np.sqrt(max(grad @ cov @ grad, 0.0)))
