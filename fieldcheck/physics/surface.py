@@ -7,12 +7,13 @@ kL = 2 pi L / lambda (0.2..7.6 step 0.02) and ln(L/a) (41 points over
 L/a = 100..20,000).  Y is interpolated with bicubic splines on its real and
 imaginary parts.  Y, not Z, because Z peaks by two orders of magnitude at the
 full-wave anti-resonance (kL near 2 pi) while Y stays smooth there and near the
-half-wave resonance alike (measured: Z splines miss the anti-resonance by
-percent, Y splines stay within the bounds below).
+half-wave resonance alike.  Measured on this grid over kL 4.5..7.5 (seeded random
+points): worst relative error 8e-7 with Z splines, 2e-7 with Y splines.
 
 Accuracy against the method of moments at the build segment count (checked at
 seeded random points in tests/test_surface.py): resonant kL within 0.05 %,
-impedance within 0.5 ohm where |X| < 100 ohm near the first resonance.
+impedance within 0.5 ohm where |X| < 100 ohm near the first resonance
+(bench/bench_physics.py measures worst 0.0001 % and 0.003 ohm).
 Supported: 0.3 <= kL <= 7.5 and 100 <= L/a <= 20,000; outside it raises.
 """
 

@@ -1,0 +1,286 @@
+"""Trim advice: how much to cut from (or add to) each arm to land on the target.
+
+Decision rules (all thresholds named below):
+
+1. Solve, with the fitted model, the electrical length whose criterion
+   frequency (best match seen by the feed line, or X = 0 at the terminals) is
+   the target.  The change in electrical length becomes a physical change
+   through the sensitivity s = d(electrical)/d(physical):
+
+   * from a trim history, s is measured (:mod:`fieldcheck.history`);
+   * from one sweep it is unknown between 1 (the whole discrepancy is a
+     constant end effect or length error) and L_el / L_built (it is all a
+     velocity factor, e.g. insulation).  We cut by the *smaller* of the two
+     and count half their difference as a model uncertainty.
+
+2. Never over-cut: the recommended cut is the nominal cut minus two standard
+   uncertainties, rounded *down* to a sensible resolution.  When that margin
+   would leave the result outside the tolerance, the advice is a conservative
+   FIRST cut followed by a re-measure.
+3. Too short: say how much to ADD per arm (nominal plus two standard
+   uncertainties, rounded up, since surplus can be trimmed), never a negative cut.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy.optimize import brentq
+
+from .antenna_fit import AntennaFit, _propagate, model_match_hz, model_resonance_hz
+from .errors import AdviceRefused
+from .features import vswr_bands
+from .sweep import return_loss_db, vswr_from_gamma
+
+#: Landing tolerance on the criterion frequency, percent of target.
+DEFAULT_TOLERANCE_PCT = 0.3
+#: Cut margin in standard uncertainties ("never over-cut" at about 97.7 % one-sided).
+SAFETY_SIGMAS = 2.0
+#: A landing within the tolerance needs the margin plus the 90 % one-sided
+#: spread (1.28 sigma) to fit inside it; otherwise advise a first cut.
+LANDING_SIGMAS = SAFETY_SIGMAS + 1.28
+#: Adding more than this fraction of the arm suggests loading instead.
+LOADING_SUGGEST_FRACTION = 0.10
+
+
+@dataclass(frozen=True)
+class Predicted:
+    """Model prediction of the antenna after the recommended change."""
+
+    f_res_hz: float
+    f_match_hz: float
+    return_loss_db_at_target: float
+    vswr_at_target: float
+    band_lo_hz: float | None
+    band_hi_hz: float | None
+    vswr_limit: float
+
+
+@dataclass(frozen=True)
+class TrimAdvice:
+    """What to do, and the evidence.
+
+    ``action`` is one of ``'cut'``, ``'first-cut'``, ``'add'``, ``'none'``,
+    ``'wait'`` (uncertainty too large to cut anything safely).  Lengths are in
+    metres; ``per_arm_m`` is the change at EACH free end (each dipole arm, or
+    the single monopole element), ``total_m`` the sum over all ends.
+    """
+
+    action: str
+    per_arm_m: float
+    total_m: float
+    nominal_per_arm_m: float
+    sigma_per_arm_m: float
+    resolution_m: float
+    n_ends: int
+    target_hz: float
+    criterion: str
+    current_hz: float
+    tolerance_pct: float
+    sensitivity: float
+    sensitivity_source: str
+    proportional_rule_per_arm_m: float | None
+    predicted: Predicted
+    headline: str
+    notes: tuple = field(default=())
+
+    def to_dict(self) -> dict:
+        p = self.predicted
+        return {
+            "action": self.action,
+            "headline": self.headline,
+            "per_arm_m": self.per_arm_m,
+            "total_m": self.total_m,
+            "n_ends": self.n_ends,
+            "nominal_per_arm_m": self.nominal_per_arm_m,
+            "sigma_per_arm_m": self.sigma_per_arm_m,
+            "resolution_m": self.resolution_m,
+            "target_hz": self.target_hz,
+            "criterion": self.criterion,
+            "current_hz": self.current_hz,
+            "tolerance_pct": self.tolerance_pct,
+            "sensitivity": self.sensitivity,
+            "sensitivity_source": self.sensitivity_source,
+            "proportional_rule_per_arm_m": self.proportional_rule_per_arm_m,
+            "predicted": {
+                "f_res_hz": p.f_res_hz, "f_match_hz": p.f_match_hz,
+                "return_loss_db_at_target": p.return_loss_db_at_target,
+                "vswr_at_target": p.vswr_at_target,
+                "band_lo_hz": p.band_lo_hz, "band_hi_hz": p.band_hi_hz, "vswr_limit": p.vswr_limit,
+            },
+            "notes": list(self.notes),
+        }
+
+
+def criterion_hz(af: AntennaFit, length_m: float, criterion: str, guess_hz: float, values=None) -> float:
+    """Criterion frequency of the fitted antenna at electrical length ``length_m``."""
+    v = values or af.fit.values
+    if criterion == "resonance":
+        return model_resonance_hz(af.model, length_m, v["r_loss_ohm"], v["c_feed_f"], guess_hz)
+    return model_match_hz(af.model, length_m, v["r_loss_ohm"], v["c_feed_f"], guess_hz)
+
+
+def solve_length_for(af: AntennaFit, target_hz: float, criterion: str, values=None) -> float:
+    """Electrical length that puts the criterion frequency on ``target_hz``."""
+    v = values or af.fit.values
+    L = v["length_m"]
+    f_now = criterion_hz(af, L, criterion, af.f_res_hz.value, v)
+    guess = L * f_now / target_hz  # only a bracket centre; the model decides
+    lo, hi = guess * 0.95, guess * 1.05
+    fun = lambda x: criterion_hz(af, x, criterion, target_hz, v) - target_hz  # noqa: E731
+    try:
+        return brentq(fun, lo, hi, xtol=1e-7 * guess)
+    except ValueError as exc:
+        raise AdviceRefused(
+            f"the model cannot place the {criterion} at {target_hz / 1e6:.6g} MHz with a length "
+            f"between {lo:.4g} and {hi:.4g} m: the target is too far from where this antenna is") from exc
+
+
+def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
+                tolerance_pct: float = DEFAULT_TOLERANCE_PCT, vswr_limit: float = 2.0,
+                sensitivity: float | None = None, sensitivity_sigma: float = 0.0,
+                sensitivity_source: str | None = None) -> TrimAdvice:
+    """Turn a fit into trim advice for ``target_hz``.
+
+    Parameters
+    ----------
+    af : AntennaFit
+    target_hz : float
+        Where the criterion frequency should land, Hz.
+    criterion : {'match', 'resonance'}
+    tolerance_pct : float
+        Landing tolerance, percent of target.
+    vswr_limit : float
+        For the predicted bandwidth.
+    sensitivity, sensitivity_sigma : float, optional
+        Measured d(electrical length)/d(physical length) from a trim history.
+
+    Raises
+    ------
+    AdviceRefused
+        The model does not describe the antenna, or the target is unreachable.
+    """
+    if af.fit.adequacy == "inadequate":
+        raise AdviceRefused(
+            "no trim advice: " + af.fit.adequacy_reason
+            + "; run 'fieldcheck diagnose' on this sweep to find out what is wrong")
+    notes = list(af.notes)
+    v, names, cov = af.fit.values, af.fit.names, af.fit.covariance
+    L_now = v["length_m"]
+    f_now = criterion_hz(af, L_now, criterion, af.f_res_hz.value)
+    L_goal = solve_length_for(af, target_hz, criterion)
+    d_el = L_now - L_goal  # electrical length to remove (negative: add)
+    sig_el = _propagate(lambda p: p["length_m"] - solve_length_for(af, target_hz, criterion, p),
+                        v, names, cov, af.fit.stderr)
+
+    if sensitivity is None:
+        s_prop = L_now / af.built_length_m
+        # Cutting: the smaller physical change is the safe one.  Adding: the larger.
+        cands = (1.0, s_prop)
+        s = max(cands) if d_el > 0 else min(cands)
+        d_phys_alt = d_el / min(cands) if d_el > 0 else d_el / max(cands)
+        sig_model = abs(d_el / s - d_phys_alt) / 2
+        source = ("one sweep: between a constant end effect (1.00) and a pure velocity factor "
+                  f"({s_prop:.3f}); the safer one is used")
+    else:
+        s = sensitivity
+        sig_model = abs(d_el / s) * (sensitivity_sigma / s)
+        source = sensitivity_source or "trim history"
+    n = af.n_ends
+    nominal = d_el / s / n
+    sigma = float(np.hypot(sig_el / s / n, sig_model / n))
+    res_m = cut_resolution_m(af.built_length_m / n)
+    tol_len = tolerance_pct / 100 * L_goal / s / n  # per-arm length equivalent of the tolerance
+
+    if abs(f_now - target_hz) <= tolerance_pct / 100 * target_hz and abs(nominal) <= tol_len:
+        action, change = "none", 0.0
+    elif nominal > 0:
+        change = np.floor((nominal - SAFETY_SIGMAS * sigma) / res_m) * res_m
+        if change <= 0:
+            action, change = "wait", 0.0
+        elif LANDING_SIGMAS * sigma > tol_len:
+            action = "first-cut"
+        else:
+            action = "cut"
+    else:
+        change = -np.ceil((-nominal + SAFETY_SIGMAS * sigma) / res_m) * res_m
+        action = "add"
+        if -change > LOADING_SUGGEST_FRACTION * af.built_length_m / n:
+            notes.append("that is a lot of wire to add: consider end loading (a capacitance hat "
+                         "or loading coil) or a new, longer element")
+    L_after = L_now - change * n * s
+    predicted = _predict(af, L_after, target_hz, vswr_limit)
+    prop = _proportional_rule(af, target_hz, criterion)
+    advice = TrimAdvice(
+        action=action, per_arm_m=float(change), total_m=float(change * n),
+        nominal_per_arm_m=float(nominal), sigma_per_arm_m=sigma, resolution_m=res_m, n_ends=n,
+        target_hz=float(target_hz), criterion=criterion, current_hz=float(f_now),
+        tolerance_pct=float(tolerance_pct), sensitivity=float(s), sensitivity_source=source,
+        proportional_rule_per_arm_m=prop, predicted=predicted,
+        headline="", notes=tuple(notes),
+    )
+    return _with_headline(advice)
+
+
+def cut_resolution_m(arm_m: float) -> float:
+    """Display/cut resolution: a 1-2-5 step no larger than 0.05 % of the arm, 0.1 mm at least.
+
+    0.05 % of the arm keeps rounding well inside a 0.3 % landing tolerance;
+    0.1 mm is about what side cutters and a steel rule achieve (common practice, no source).
+    """
+    limit = max(arm_m * 5e-4, 1e-4)
+    steps = [1e-4, 2e-4, 5e-4, 1e-3, 2e-3, 5e-3, 1e-2, 2e-2, 5e-2]
+    return max(s for s in steps if s <= limit)
+
+
+def _predict(af: AntennaFit, length_m: float, target_hz: float, vswr_limit: float) -> Predicted:
+    v = af.fit.values
+    R, C = v["r_loss_ohm"], v["c_feed_f"]
+    f_res = model_resonance_hz(af.model, length_m, R, C, target_hz)
+    f_match = model_match_hz(af.model, length_m, R, C, target_hz)
+    g_t = af.model.gamma(np.array([target_hz]), length_m, R, C)[0]
+    f = target_hz * np.linspace(0.75, 1.25, 1001)
+    bands = vswr_bands(f, af.model.gamma(f, length_m, R, C), vswr_limit)
+    band = next((b for b in bands if b.f_lo_hz <= target_hz <= b.f_hi_hz), None)
+    return Predicted(
+        f_res_hz=float(f_res), f_match_hz=float(f_match),
+        return_loss_db_at_target=float(return_loss_db(g_t)),
+        vswr_at_target=float(vswr_from_gamma(g_t)),
+        band_lo_hz=band.f_lo_hz if band else None, band_hi_hz=band.f_hi_hz if band else None,
+        vswr_limit=float(vswr_limit),
+    )
+
+
+def _proportional_rule(af: AntennaFit, target_hz: float, criterion: str) -> float | None:
+    """The plain rule: physical length scales as 1/f from the measured crossing (or the fit)."""
+    f_meas = af.measured_crossing_hz if criterion == "resonance" else None
+    f_meas = f_meas or (af.f_match_hz if criterion == "match" else af.f_res_hz.value)
+    built = af.built_length_m
+    return float((built - built * f_meas / target_hz) / af.n_ends)
+
+
+def _with_headline(a: TrimAdvice) -> TrimAdvice:
+    from dataclasses import replace
+
+    where = "EACH arm" if a.n_ends == 2 else "the element"
+    total = f" ({fmt_mm(abs(a.total_m))} total)" if a.n_ends == 2 else ""
+    if a.action == "cut":
+        h = f"CUT {fmt_mm(a.per_arm_m)} from {where}{total}"
+    elif a.action == "first-cut":
+        h = (f"FIRST CUT {fmt_mm(a.per_arm_m)} from {where}{total}, then re-measure "
+             "(the uncertainty is too large to go all the way in one step)")
+    elif a.action == "add":
+        h = f"TOO SHORT: ADD {fmt_mm(-a.per_arm_m)} to {where}{total}, then re-measure and trim"
+    elif a.action == "wait":
+        h = ("DO NOT CUT YET: the needed cut is smaller than its uncertainty; re-measure with a "
+             "wider or cleaner sweep first")
+    else:
+        h = "NO CUT NEEDED: already within tolerance of the target"
+    return replace(a, headline=h)
+
+
+def fmt_mm(length_m: float) -> str:
+    """Millimetres with one decimal below 100 mm, whole millimetres above."""
+    mm = length_m * 1e3
+    return f"{mm:.1f} mm" if abs(mm) < 100 else f"{mm:.0f} mm"
