@@ -17,6 +17,7 @@ from .errors import FieldcheckError
 
 #: Subcommand modules in the order ``--help`` lists them.
 COMMAND_MODULES = (
+    "trim",
     "inspect",
     "locate",
     "wheeler",

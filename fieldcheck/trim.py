@@ -174,19 +174,16 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
     sig_el = _propagate(lambda p: p["length_m"] - solve_length_for(af, target_hz, criterion, p),
                         v, names, cov, af.fit.stderr)
 
-    if sensitivity is None:
-        s_prop = L_now / af.built_length_m
-        # Cutting: the smaller physical change is the safe one.  Adding: the larger.
-        cands = (1.0, s_prop)
-        s = max(cands) if d_el > 0 else min(cands)
-        d_phys_alt = d_el / min(cands) if d_el > 0 else d_el / max(cands)
-        sig_model = abs(d_el / s - d_phys_alt) / 2
-        source = ("one sweep: between a constant end effect (1.00) and a pure velocity factor "
-                  f"({s_prop:.3f}); the safer one is used")
-    else:
-        s = sensitivity
-        sig_model = abs(d_el / s) * (sensitivity_sigma / s)
-        source = sensitivity_source or "trim history"
+    s, sig_model, source = _one_sweep_sensitivity(d_el, L_now / af.built_length_m)
+    if sensitivity is not None:
+        sig_hist = abs(d_el / sensitivity) * (sensitivity_sigma / sensitivity)
+        if sig_hist < sig_model:
+            s, sig_model = sensitivity, sig_hist
+            source = sensitivity_source or "trim history"
+        else:
+            notes.append(f"the trim history ({sensitivity_source or 'given'}) pins the sensitivity "
+                         "less tightly than the one-sweep bracket, so the bracket is used; cut over a "
+                         "wider range of lengths to make the history count")
     n = af.n_ends
     nominal = d_el / s / n
     sigma = float(np.hypot(sig_el / s / n, sig_model / n))
@@ -221,6 +218,22 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
         headline="", notes=tuple(notes),
     )
     return _with_headline(advice)
+
+
+def _one_sweep_sensitivity(d_el: float, s_prop: float):
+    """Sensitivity from one sweep: between 1 (constant end effect) and ``s_prop`` (pure velocity factor).
+
+    Cutting: the larger sensitivity gives the smaller, safe cut.  Adding: the
+    smaller gives the larger addition (surplus can be trimmed).  Half the
+    difference of the two answers counts as a standard uncertainty.
+    """
+    lo, hi = sorted((1.0, s_prop))
+    s = hi if d_el > 0 else lo
+    other = lo if d_el > 0 else hi
+    sig = abs(d_el / s - d_el / other) / 2
+    source = ("one sweep: between a constant end effect (1.000) and a pure velocity factor "
+              f"({s_prop:.3f}); the safer one is used")
+    return s, sig, source
 
 
 def cut_resolution_m(arm_m: float) -> float:

@@ -55,9 +55,17 @@ class _ListCables(argparse.Action):
         parser.exit(0)
 
 
-def load_sweep(args: argparse.Namespace, path: str):
-    """Read ``path`` as the options say and move it to the antenna terminals."""
+def load_sweep(args: argparse.Namespace, path: str, feed=None):
+    """Read ``path`` as the options say and move it to the antenna terminals.
+
+    ``feed`` (a FeedSpec from an antenna description, already merged with the
+    command-line options) supplies cable, fixture and delay when given.
+    """
     from .. import importer, refplane
+
+    cable = feed.cable if feed is not None else args.cable
+    fixture = feed.fixture_path if feed is not None else args.fixture
+    delay = feed.delay if feed is not None else args.delay
 
     sweep = importer.read_sweep(
         path,
@@ -69,12 +77,12 @@ def load_sweep(args: argparse.Namespace, path: str):
     )
     return refplane.apply_from_options(
         sweep,
-        cable=args.cable,
+        cable=cable,
         cable_vf=args.cable_vf,
         cable_loss=args.cable_loss,
         cable_z0=args.cable_z0,
-        fixture=args.fixture,
-        delay=args.delay,
+        fixture=fixture,
+        delay=delay,
         delay_vf=args.delay_vf,
     )
 

@@ -1,0 +1,1 @@
+"""Reports: format results computed elsewhere; never compute physics here."""

@@ -1,0 +1,99 @@
+"""Terminal report of a trim run: the answer first, then the evidence."""
+
+from __future__ import annotations
+
+from ..constants import C0_M_PER_S
+from .text import SAFETY_TRIM, mhz, mm, signed_mm, table
+
+
+def render_trim(source: str, af, advice, shift, history=None) -> str:
+    """Format a trim result.  ``af`` AntennaFit, ``advice`` TrimAdvice, ``shift`` ShiftBudget."""
+    v, e = af.fit.values, af.fit.stderr
+    n = advice.n_ends
+    arm = "per arm" if n == 2 else "on the element"
+    lines = [f"fieldcheck trim: {source}", "", "  " + advice.headline]
+    if advice.action in ("cut", "first-cut", "add"):
+        lines.append(
+            f"  (needed {mm(abs(advice.nominal_per_arm_m))} ± {mm(advice.sigma_per_arm_m)} {arm}; "
+            f"the advice keeps a {advice_margin(advice)} safety margin and rounds to "
+            f"{mm(advice.resolution_m)})")
+    lines.append("")
+    lines.append("Evidence")
+    rows = [
+        ("target", f"{mhz(advice.target_hz)} ({_criterion_words(advice.criterion)}), "
+                   f"tolerance ± {advice.tolerance_pct:g} %"),
+        ("now at", f"{mhz(advice.current_hz)} ({(advice.current_hz / advice.target_hz - 1) * 100:+.2f} % "
+                   "from target)"),
+    ]
+    if af.measured_crossing_hz:
+        rows.append(("X = 0 on the trace", mhz(af.measured_crossing_hz)))
+    rows += [
+        ("fitted resonance", f"{mhz(af.f_res_hz.value)} ± {af.f_res_hz.stderr / 1e3:.1f} kHz "
+                             "(X = 0 at the antenna terminals)"),
+        ("best match", f"{mhz(af.f_match_hz)} (seen by the feed line)"),
+        ("electrical length", f"{mm(v['length_m'])} ± {mm(e['length_m'])} vs built "
+                              f"{mm(af.built_length_m)} ({'tip to tip' if n == 2 else 'height'})"),
+        ("difference", f"{signed_mm(af.length_error_m.value)} total = "
+                       f"{signed_mm(af.end_correction_per_end_m.value)} per end"),
+        ("loss resistance", f"{v['r_loss_ohm']:.2f} ± {e['r_loss_ohm']:.2f} ohm"),
+        ("radiation efficiency", f"{af.efficiency.value * 100:.1f} % ± {af.efficiency.stderr * 100:.1f} %"),
+        ("feed capacitance", f"{v['c_feed_f'] * 1e12:.2f} ± {e['c_feed_f'] * 1e12:.2f} pF"),
+        ("residual delay", f"{v['delay_s'] * 1e9:+.3f} ± {e['delay_s'] * 1e9:.3f} ns "
+                           f"(= {v['delay_s'] * C0_M_PER_S * 100:+.1f} cm of air line, one way)"),
+        ("model fit", f"{af.fit.adequacy}: {af.fit.adequacy_reason}"),
+    ]
+    lines += table(rows)
+    lines.append("")
+    lines.append("Why it differs from the design")
+    lines += table([
+        ("design (bare wire, as built)", mhz(shift.design_hz)),
+        ("from electrical length", f"{shift.length_part_hz / 1e6:+.3f} MHz (length error, end effect, "
+                                   "insulation, supports)"),
+        ("from feed C and loss", f"{shift.feed_part_hz / 1e6:+.3f} MHz"),
+        ("fitted resonance", mhz(shift.measured_hz)),
+    ])
+    if history is not None:
+        lines.append("")
+        lines.append("Trim history")
+        lines += table([
+            ("sweeps", str(len(history.physical_m))),
+            ("proportional part", f"kappa = {history.kappa:.4f} ± {history.kappa_sigma:.4f} "
+                                  f"(velocity factor {1 / history.kappa:.4f})"),
+            ("constant part", f"{signed_mm(history.end_effect_per_end_m)} per end "
+                              f"(± {mm(history.offset_sigma_m / history.n_ends)})"),
+        ])
+    p = advice.predicted
+    lines.append("")
+    lines.append("After the change (model prediction)" if advice.action != "none" else "As it is (model)")
+    rows = [
+        ("best match", mhz(p.f_match_hz)),
+        ("resonance", mhz(p.f_res_hz)),
+        (f"at {mhz(advice.target_hz)}", f"return loss {p.return_loss_db_at_target:.1f} dB, "
+                                        f"VSWR {p.vswr_at_target:.2f}"),
+    ]
+    if p.band_lo_hz is not None:
+        rows.append((f"VSWR <= {p.vswr_limit:g}", f"{mhz(p.band_lo_hz)} to {mhz(p.band_hi_hz)} "
+                                                 f"({(p.band_hi_hz - p.band_lo_hz) / 1e6:.2f} MHz)"))
+    else:
+        rows.append((f"VSWR <= {p.vswr_limit:g}", "not reached at the target"))
+    lines += table(rows)
+    if advice.proportional_rule_per_arm_m is not None and advice.action in ("cut", "first-cut", "add"):
+        pr = advice.proportional_rule_per_arm_m
+        word = "cut" if pr > 0 else "add"
+        lines.append("")
+        lines.append(f"For comparison, the plain 1/f proportional rule says: {word} {mm(abs(pr))} {arm}.")
+    if advice.notes:
+        lines.append("")
+        lines += [f"NOTE: {t}" for t in advice.notes]
+    lines.append("")
+    lines.append(f"Sensitivity: {advice.sensitivity_source}.")
+    lines.append(SAFETY_TRIM)
+    return "\n".join(lines)
+
+
+def advice_margin(advice) -> str:
+    return f"{abs(abs(advice.nominal_per_arm_m) - abs(advice.per_arm_m)) * 1e3:.1f} mm"
+
+
+def _criterion_words(c: str) -> str:
+    return "best match seen by the feed line" if c == "match" else "X = 0 at the antenna terminals"
