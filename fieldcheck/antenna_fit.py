@@ -17,7 +17,7 @@ from scipy.optimize import brentq
 
 from . import features
 from .constants import C0_M_PER_S, TWO_PI
-from .errors import FitError
+from .errors import FieldcheckError, FitError
 from .fit import FitResult, ParamSpec, fit_reflection
 from .model import AntennaModel, model_from_description
 from .physics.surface import KL_MAX, KL_MIN, default_surface
@@ -280,7 +280,11 @@ def _derive(res: FitResult, model, built, n_ends, f_all, crossing, notes) -> Ant
     v, cov, names = res.values, res.covariance, res.names
     L, R, C = v["length_m"], v["r_loss_ohm"], v["c_feed_f"]
     f_guess = crossing or C0_M_PER_S / (2 * L * _len_factor(model))
-    f_res = model_resonance_hz(model, L, R, C, f_guess)
+    try:
+        f_res = model_resonance_hz(model, L, R, C, f_guess)
+    except FitError as exc:
+        raise FitError(f"{exc}; the fit is {res.adequacy} ({res.adequacy_reason}); "
+                       "run 'fieldcheck diagnose' on this sweep") from exc
     f_match = model_match_hz(model, L, R, C, f_res)
     z_res = model.z_terminals(np.array([f_res]), L, R, C)[0]
     r_rad = float(model.z_wire(np.array([f_res]), L)[0].real)
@@ -316,12 +320,17 @@ def _derive(res: FitResult, model, built, n_ends, f_all, crossing, notes) -> Ant
 def _propagate(fun, values, names, cov, stderr) -> float:
     """Standard error of ``fun(values)`` by first-order (delta-method) propagation."""
     grad = np.zeros(len(names))
-    base = fun(values)
-    for i, n in enumerate(names):
-        h = max(stderr[n], abs(values[n]) * 1e-6, 1e-18) * 0.1
-        p = dict(values)
-        p[n] = values[n] + h
-        grad[i] = (fun(p) - base) / h
+    try:
+        base = fun(values)
+        for i, n in enumerate(names):
+            h = max(stderr[n], abs(values[n]) * 1e-6, 1e-18) * 0.1
+            p = dict(values)
+            p[n] = values[n] + h
+            grad[i] = (fun(p) - base) / h
+    except FieldcheckError:
+        # The quantity does not exist a small step away (e.g. the resonance
+        # vanishes): its uncertainty is undefined, and says so.
+        return float("nan")
     return float(np.sqrt(max(grad @ cov @ grad, 0.0)))
 
 

@@ -187,6 +187,9 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
     n = af.n_ends
     nominal = d_el / s / n
     sigma = float(np.hypot(sig_el / s / n, sig_model / n))
+    if not np.isfinite(sigma):
+        raise AdviceRefused("no trim advice: the uncertainty of the needed change cannot be computed "
+                            "(the fitted resonance is unstable); run 'fieldcheck diagnose' on this sweep")
     res_m = cut_resolution_m(af.built_length_m / n)
     tol_len = tolerance_pct / 100 * L_goal / s / n  # per-arm length equivalent of the tolerance
 
