@@ -34,6 +34,18 @@ LENGTH_FREEDOM = 1.35
 #: be tens of ohms; feed hardware rarely tens of pF).
 R_LOSS_MAX_OHM = 300.0
 C_FEED_MAX_F = 50e-12
+#: Calibration residuals assumed for every sweep (effective directivity 40 dB,
+#: source match 35 dB, reflection tracking 0.1 dB: what a careful
+#: short-open-load calibration with a decent kit leaves behind; common practice,
+#: no source).  They enter the covariance as systematic terms (see fit.py):
+#: errors the fit absorbs without a trace in its residuals.
+CAL_RESIDUALS = (
+    (10 ** (-40 / 20), lambda g: np.ones_like(g)),        # directivity e00
+    (10 ** (-35 / 20), lambda g: g * g),                  # source match e11 * G^2
+    (10 ** (0.1 / 20) - 1, lambda g: g),                  # tracking (e10 e01 - 1) * G
+)
+#: Shunt conductance bound: 0.1 S is a 10-ohm shunt, far beyond any working feed.
+G_FEED_MAX_S = 0.1
 
 
 @dataclass(frozen=True)
@@ -55,21 +67,24 @@ class AntennaFit:
     Attributes
     ----------
     fit : FitResult
-        Raw fit (parameters length_m, r_loss_ohm, c_feed_f, delay_s).
+        Raw fit (parameters length_m, r_loss_ohm, c_feed_f, g_feed_s, delay_s).
     model : AntennaModel
         The fixed part of the model used.
     built_length_m : float
         As-built electrical-model length: dipole tip to tip (2 arms + gap), or monopole height.
     n_ends : int
         Free ends (2 for a dipole, 1 for a monopole).
-    f_res_hz : Derived
-        First series resonance (X = 0) of the fitted antenna at its own terminals.
+    f_res_hz : Derived or None
+        First series resonance (X = 0) of the fitted antenna at its own terminals;
+        None when the feed capacitance or loss leaves no X = 0 there.
     f_match_hz : float
         Frequency of the best match seen by the feed line (model, no residual delay).
     r_at_res_ohm, r_rad_ohm : float
-        Terminal resistance and its radiation part at ``f_res_hz``.
+        Terminal resistance and its radiation part at ``f_res_hz`` (or at the best match).
     efficiency : Derived
-        Radiation efficiency R_rad / (R_rad + R_loss) at resonance (IEEE Std 145-2013 definition).
+        Radiation efficiency R_rad / (R_rad + R_loss) there (IEEE Std 145-2013 definition).
+    feed_shunt_loss : float
+        Fraction of the delivered power lost in the shunt conductance across the feed.
     length_error_m : Derived
         Electrical minus as-built length (positive: electrically longer than built).
     measured_crossing_hz : float or None
@@ -83,11 +98,12 @@ class AntennaFit:
     model: AntennaModel
     built_length_m: float
     n_ends: int
-    f_res_hz: Derived
+    f_res_hz: Derived | None
     f_match_hz: float
     r_at_res_ohm: float
     r_rad_ohm: float
     efficiency: Derived
+    feed_shunt_loss: float
     length_error_m: Derived
     measured_crossing_hz: float | None
     resonance_in_sweep: bool
@@ -110,11 +126,12 @@ class AntennaFit:
             "electrical_length_m": self.length_m.to_dict(),
             "length_error_m": self.length_error_m.to_dict(),
             "end_correction_per_end_m": self.end_correction_per_end_m.to_dict(),
-            "f_res_hz": self.f_res_hz.to_dict(),
+            "f_res_hz": self.f_res_hz.to_dict() if self.f_res_hz else None,
             "f_match_hz": self.f_match_hz,
             "r_at_res_ohm": self.r_at_res_ohm,
             "r_rad_ohm": self.r_rad_ohm,
             "efficiency": self.efficiency.to_dict(),
+            "feed_shunt_loss": self.feed_shunt_loss,
             "measured_crossing_hz": self.measured_crossing_hz,
             "resonance_in_sweep": self.resonance_in_sweep,
             "notes": list(self.notes),
@@ -122,7 +139,7 @@ class AntennaFit:
 
 
 def model_resonance_hz(model: AntennaModel, length_m: float, r_loss_ohm: float, c_feed_f: float,
-                       f_guess_hz: float) -> float:
+                       f_guess_hz: float, g_feed_s: float = 0.0) -> float:
     """First series resonance (X rising through 0) of the model near ``f_guess_hz``, Hz.
 
     Searches kL 2.0..3.6 (the half-wave region) and returns the crossing closest
@@ -131,23 +148,28 @@ def model_resonance_hz(model: AntennaModel, length_m: float, r_loss_ohm: float, 
     f_lo = 2.0 * C0_M_PER_S / (TWO_PI * length_m * _len_factor(model))
     f_hi = 3.6 * C0_M_PER_S / (TWO_PI * length_m * _len_factor(model))
     f = np.linspace(f_lo, f_hi, 321)
-    x = model.z_terminals(f, length_m, r_loss_ohm, c_feed_f).imag
+    x = model.z_terminals(f, length_m, r_loss_ohm, c_feed_f, g_feed_s).imag
     idx = np.flatnonzero((x[:-1] < 0) & (x[1:] >= 0))
     if idx.size == 0:
         raise FitError("the fitted model has no series resonance in the half-wave region")
     i = idx[np.argmin(np.abs(f[idx] - f_guess_hz))]
-    fx = lambda t: float(model.z_terminals(np.array([t]), length_m, r_loss_ohm, c_feed_f)[0].imag)  # noqa: E731
+    fx = lambda t: float(model.z_terminals(np.array([t]), length_m, r_loss_ohm, c_feed_f,  # noqa: E731
+                                           g_feed_s)[0].imag)
     return brentq(fx, f[i], f[i + 1], xtol=1e-9 * f[i])
 
 
 def model_match_hz(model: AntennaModel, length_m: float, r_loss_ohm: float, c_feed_f: float,
-                   f_guess_hz: float) -> float:
+                   f_guess_hz: float, g_feed_s: float = 0.0) -> float:
     """Frequency of minimum |Gamma| seen by the feed line near ``f_guess_hz``, Hz."""
-    f = f_guess_hz * np.linspace(0.85, 1.15, 601)
-    m = np.abs(model.gamma(f, length_m, r_loss_ohm, c_feed_f))
-    i = int(np.clip(np.argmin(m), 1, f.size - 2))
-    # Parabolic refinement of the minimum of |Gamma|^2 through three samples.
-    y0, y1, y2 = m[i - 1] ** 2, m[i] ** 2, m[i + 1] ** 2
+    gamma = lambda f: model.gamma(f, length_m, r_loss_ohm, c_feed_f, 0.0, g_feed_s)  # noqa: E731
+    f = f_guess_hz * np.linspace(0.85, 1.15, 121)
+    i = int(np.clip(np.argmin(np.abs(gamma(f))), 1, f.size - 2))
+    # Zoom once around the coarse minimum, then refine with a parabola through
+    # three samples of |Gamma|^2 (smooth and quadratic near its minimum).
+    f = np.linspace(f[i - 1], f[i + 1], 41)
+    m2 = np.abs(gamma(f)) ** 2
+    i = int(np.clip(np.argmin(m2), 1, f.size - 2))
+    y0, y1, y2 = m2[i - 1], m2[i], m2[i + 1]
     den = y0 - 2 * y1 + y2
     t = 0.5 * (y0 - y2) / den if den > 0 else 0.0
     return float(f[i] + t * (f[1] - f[0]))
@@ -252,63 +274,97 @@ def _start_frequency(f, z_ant, g_line, f_design, notes):
 
 def _fit_once(model, f, g, length0, lo_len, hi_len, tau_max, start=None):
     start = start or {}
-    l0 = float(np.clip(start.get("length_m", length0), lo_len, hi_len))
+
+    def spec(name, unit, default, lo, hi):
+        return ParamSpec(name, unit, float(np.clip(start.get(name, default), lo, hi)), lo, hi)
+
     params = [
-        ParamSpec("length_m", "m", l0, lo_len, hi_len),
-        ParamSpec("r_loss_ohm", "ohm", float(np.clip(start.get("r_loss_ohm", 0.5), 0, R_LOSS_MAX_OHM)),
-                  0.0, R_LOSS_MAX_OHM),
-        ParamSpec("c_feed_f", "F", float(np.clip(start.get("c_feed_f", 0.2e-12), 0, C_FEED_MAX_F)),
-                  0.0, C_FEED_MAX_F),
-        ParamSpec("delay_s", "s", float(np.clip(start.get("delay_s", 0.0), -tau_max, tau_max)),
-                  -tau_max, tau_max),
+        spec("length_m", "m", length0, lo_len, hi_len),
+        spec("r_loss_ohm", "ohm", 0.5, 0.0, R_LOSS_MAX_OHM),
+        spec("c_feed_f", "F", 0.2e-12, 0.0, C_FEED_MAX_F),
+        spec("g_feed_s", "S", 1e-5, 0.0, G_FEED_MAX_S),
+        spec("delay_s", "s", 0.0, -tau_max, tau_max),
     ]
     fun = model.gamma_from_values
-    best = fit_reflection(f, g, fun, params)
-    if start or best.adequacy == "good":
+    best = fit_reflection(f, g, fun, params, systematics=CAL_RESIDUALS)
+    if start or best.adequacy != "inadequate":
         return best
-    # A residual delay rotates the trace; when the first start did not land on
-    # a noise-level fit, try starts on both sides of zero too.
+    # A residual delay rotates the trace; when the first start landed far from
+    # the data, try starts on both sides of zero too.
     for tau in (-tau_max / 3, tau_max / 3):
         trial = [p if p.name != "delay_s" else replace(p, initial=tau) for p in params]
-        r = fit_reflection(f, g, fun, trial, noise_sigma=best.noise_sigma)
+        r = fit_reflection(f, g, fun, trial, noise_sigma=best.noise_sigma, systematics=CAL_RESIDUALS)
         if r.chi2 < best.chi2 * (1 - 1e-6):
             best = r
     return best
 
 
+def feed_of(v: dict) -> dict:
+    """The feed-side parameters of a value dict, as keywords for the model helpers."""
+    return {"r_loss_ohm": v["r_loss_ohm"], "c_feed_f": v["c_feed_f"], "g_feed_s": v.get("g_feed_s", 0.0)}
+
+
+def resonance_of(model, length_m, v, f_guess_hz):
+    """First series resonance of the model with the feed values ``v``, Hz."""
+    fd = feed_of(v)
+    return model_resonance_hz(model, length_m, fd["r_loss_ohm"], fd["c_feed_f"], f_guess_hz, fd["g_feed_s"])
+
+
+def match_of(model, length_m, v, f_guess_hz):
+    """Best-match frequency of the model with the feed values ``v``, Hz."""
+    fd = feed_of(v)
+    return model_match_hz(model, length_m, fd["r_loss_ohm"], fd["c_feed_f"], f_guess_hz, fd["g_feed_s"])
+
+
+def _efficiencies(model, f_hz, p):
+    """Radiation efficiency of the antenna and the fraction of power lost in the feed shunt.
+
+    Antenna: R_rad / (R_rad + R_loss) (IEEE Std 145-2013).  Feed shunt: with
+    terminal voltage V, the series branch takes |V|^2 Re(1/(Z_w + R_loss)) and
+    the shunt |V|^2 G; the capacitance takes no real power.
+    """
+    zw = model.z_wire(np.array([f_hz]), p["length_m"])[0]
+    r_rad = float(zw.real)
+    eff = r_rad / (r_rad + p["r_loss_ohm"])
+    y_series = (1.0 / (zw + p["r_loss_ohm"])).real
+    shunt = p.get("g_feed_s", 0.0) / (y_series + p.get("g_feed_s", 0.0))
+    return r_rad, eff, shunt
+
+
 def _derive(res: FitResult, model, built, n_ends, f_all, crossing, notes) -> AntennaFit:
     v, cov, names = res.values, res.covariance, res.names
-    L, R, C = v["length_m"], v["r_loss_ohm"], v["c_feed_f"]
+    L = v["length_m"]
     f_guess = crossing or C0_M_PER_S / (2 * L * _len_factor(model))
     try:
-        f_res = model_resonance_hz(model, L, R, C, f_guess)
-    except FitError as exc:
-        raise FitError(f"{exc}; the fit is {res.adequacy} ({res.adequacy_reason}); "
-                       "run 'fieldcheck diagnose' on this sweep") from exc
-    f_match = model_match_hz(model, L, R, C, f_res)
-    z_res = model.z_terminals(np.array([f_res]), L, R, C)[0]
-    r_rad = float(model.z_wire(np.array([f_res]), L)[0].real)
-    eff = r_rad / (r_rad + R)
-
-    def f_res_of(p):
-        return model_resonance_hz(model, p["length_m"], p["r_loss_ohm"], p["c_feed_f"], f_res)
-
-    def eff_of(p):
-        rr = float(model.z_wire(np.array([f_res]), p["length_m"])[0].real)
-        return rr / (rr + p["r_loss_ohm"])
-
-    sig_f = _propagate(f_res_of, v, names, cov, res.stderr)
-    sig_e = _propagate(eff_of, v, names, cov, res.stderr)
-    in_sweep = f_all[0] <= f_res <= f_all[-1]
+        f_res = resonance_of(model, L, v, f_guess)
+    except FitError:
+        f_res = None
+        notes.append("the fitted antenna shows no X = 0 at its terminals (feed capacitance or "
+                     "loss hides the resonance); results refer to the best match instead")
+    f_match = match_of(model, L, v, f_res or f_guess)
+    f_ref = f_res or f_match
+    z_ref = model.z_terminals(np.array([f_ref]), L, **feed_of(v))[0]
+    r_rad, eff, shunt = _efficiencies(model, f_ref, v)
+    sig_e = _propagate(lambda p: _efficiencies(model, f_ref, p)[1], v, names, cov, res.stderr)
+    if f_res is not None:
+        sig_f = _propagate(lambda p: resonance_of(model, p["length_m"], p, f_res), v, names, cov, res.stderr)
+        res_d = Derived(float(f_res), sig_f, "Hz")
+    else:
+        res_d = None
+    in_sweep = f_all[0] <= f_ref <= f_all[-1]
     if not in_sweep:
-        notes.append(f"the fitted resonance {f_res / 1e6:.6g} MHz lies outside the sweep "
-                     f"({f_all[0] / 1e6:.6g}..{f_all[-1] / 1e6:.6g} MHz): results extrapolate")
+        notes.append(f"the fitted {'resonance' if f_res else 'best match'} {f_ref / 1e6:.6g} MHz lies "
+                     f"outside the sweep ({f_all[0] / 1e6:.6g}..{f_all[-1] / 1e6:.6g} MHz): results extrapolate")
+    if shunt > 0.02:
+        notes.append(f"{shunt * 100:.0f} % of the power is lost in a shunt across the feed (lossy choke or "
+                     "balun core, wet or dirty insulator) before it reaches the antenna")
     return AntennaFit(
         fit=res, model=model, built_length_m=float(built), n_ends=n_ends,
-        f_res_hz=Derived(float(f_res), sig_f, "Hz"),
+        f_res_hz=res_d,
         f_match_hz=f_match,
-        r_at_res_ohm=float(z_res.real), r_rad_ohm=r_rad,
+        r_at_res_ohm=float(z_ref.real), r_rad_ohm=r_rad,
         efficiency=Derived(float(eff), sig_e, "1"),
+        feed_shunt_loss=float(shunt),
         length_error_m=Derived(float(L - built), res.stderr["length_m"], "m"),
         measured_crossing_hz=crossing,
         resonance_in_sweep=bool(in_sweep),
@@ -354,8 +410,10 @@ class ShiftBudget:
                 "length_part_hz": self.length_part_hz, "feed_part_hz": self.feed_part_hz}
 
 
-def explain_shift(af: AntennaFit) -> ShiftBudget:
-    """Split resonance(fitted) - resonance(design) into length and feed parts."""
+def explain_shift(af: AntennaFit) -> ShiftBudget | None:
+    """Split resonance(fitted) - resonance(design) into length and feed parts (None without a resonance)."""
+    if af.f_res_hz is None:
+        return None
     v = af.fit.values
     f_fit = af.f_res_hz.value
     f_design = model_resonance_hz(af.model, af.built_length_m, 0.0, 0.0, f_fit)

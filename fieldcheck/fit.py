@@ -8,22 +8,26 @@ Weighting and covariance
 ------------------------
 Residuals are the real and imaginary parts of ``Gamma_model - Gamma_measured``
 divided by the measurement noise sigma, estimated from the data themselves
-(:func:`estimate_noise_sigma`).  The covariance is ``(J^T J)^-1`` evaluated at
-the solution, then multiplied by two factors, both >= 1 and both reported:
+(:func:`estimate_noise_sigma`).  The stated covariance has two parts:
 
-* ``max(1, reduced chi-square)``: when the model misses something, the misfit is
-  treated as extra noise, so the stated errors grow instead of staying at the
-  noise-only value (the usual "scale by the residual variance" practice, e.g.
-  Press et al., Numerical Recipes, 3rd ed., section 15.6, applied only upward);
-* ``(1 + rho) / (1 - rho)``: rho is the lag-1 autocorrelation of the residuals.
-  Structured (correlated) misfit carries fewer independent pieces of
-  information than points; for an AR(1) process the variance of a mean grows by
-  this factor (Bartlett's effective sample size; Box, Jenkins and Reinsel, Time
-  Series Analysis, 4th ed., section 2.1), applied here as a first-order
-  inflation.
+* statistical: ``(J^T J)^-1`` at the solution, multiplied by
+  ``max(1, reduced chi-square)``, so that when the model misses something the
+  misfit is treated as extra noise and the errors grow instead of staying at
+  the noise-only value (the usual "scale by the residual variance" practice,
+  e.g. Press et al., Numerical Recipes, 3rd ed., section 15.6, applied only
+  upward);
+* systematic: the parameter shifts that known bench error terms of a given
+  size but unknown phase would cause (for example a calibration's residual
+  directivity, source match and tracking).  Each term ``m * exp(j phi) * b(f)``
+  with phi uniform gives, to first order, a shift ``dp = -J^+ dr``; averaged
+  over phi its covariance is ``m^2 / 2 (a a^T + c c^T)`` with ``a``, ``c`` the
+  shifts for the real and imaginary unit phasors.  Such errors leave no trace in
+  the residuals (the fit absorbs them), so only this term can make the error
+  bars cover them.
 
-Both make the errors honest rather than optimistic when the model is imperfect;
-neither can make them smaller than the noise alone implies.
+Neither part can make the errors smaller than the noise alone implies.  The
+lag-1 autocorrelation of the residuals is reported as a diagnostic of
+structured misfit.
 """
 
 from __future__ import annotations
@@ -92,7 +96,7 @@ class FitResult:
     residual_autocorr : float
         Lag-1 autocorrelation of the residuals (0 for white noise).
     covariance_scale : float
-        Total factor applied to (J^T J)^-1.
+        Factor applied to (J^T J)^-1 (max of 1 and the reduced chi-square).
     adequacy : str
         ``'good'``, ``'marginal'`` or ``'inadequate'``.
     adequacy_reason : str
@@ -168,7 +172,7 @@ def estimate_noise_sigma(gamma: np.ndarray) -> float:
     return float(max(1.4826 * mad / np.sqrt(6.0), NOISE_FLOOR))
 
 
-def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None) -> FitResult:
+def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None, systematics=()) -> FitResult:
     """Fit ``model(f_hz, values_dict)`` to measured reflection ``gamma_meas``.
 
     Parameters
@@ -182,6 +186,10 @@ def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None) -> FitR
     params : sequence of ParamSpec
     noise_sigma : float, optional
         Known noise per real component; estimated from the data when omitted.
+    systematics : sequence of (magnitude, callable)
+        Bench error terms: ``callable(gamma_model) -> complex ndarray`` is the
+        term's shape b(f) (e.g. ``lambda g: g**2`` for source match) and
+        ``magnitude`` its size with unknown phase (see the module docstring).
     """
     f = np.asarray(f_hz, dtype=float)
     g = np.asarray(gamma_meas, dtype=complex)
@@ -220,12 +228,20 @@ def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None) -> FitR
     d = model(f, values) - g
     rms = float(np.sqrt(np.mean(np.abs(d) ** 2)))
     rho = _lag1_autocorr(d)
-    scale_cov = max(1.0, red) * (1 + max(rho, 0.0)) / (1 - min(max(rho, 0.0), 0.95))
+    scale_cov = max(1.0, red)
     J = sol.jac
     try:
-        cov_x = np.linalg.pinv(J.T @ J) * scale_cov
+        j_pinv = np.linalg.pinv(J)
     except np.linalg.LinAlgError as exc:  # pragma: no cover - pinv rarely fails
         raise FitError(f"covariance could not be computed: {exc}") from exc
+    cov_x = (j_pinv @ j_pinv.T) * scale_cov
+    g_fit = g + d
+    for magnitude, shape in systematics:
+        b = np.asarray(shape(g_fit), dtype=complex) * np.ones_like(g_fit)
+        for unit in (1.0, 1j):
+            dr = np.concatenate([(unit * b).real, (unit * b).imag]) / sigma
+            dx = j_pinv @ dr
+            cov_x = cov_x + 0.5 * magnitude**2 * np.outer(dx, dx)
     cov = cov_x * np.outer(scale, scale)
     err = np.sqrt(np.clip(np.diag(cov), 0, None))
     stderr = {p.name: 0.0 for p in params if p.fixed}

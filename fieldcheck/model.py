@@ -6,7 +6,8 @@ reference plane has been moved there)::
     Z_wire(f; L)          method-of-moments impedance of the perfectly conducting
                           wire of electrical length L, in its installation
     + R_loss              series loss resistance at the feed (conductor, joints)
-    || C_feed             shunt capacitance across the feed terminals (gap, hardware)
+    || C_feed, G_feed     shunt capacitance and conductance across the feed terminals
+                          (gap and hardware; a lossy choke or balun core)
     / balun_ratio         ideal balun impedance ratio (1 or 4)
     -> Gamma vs z0        reflection seen by the feed line
     * exp(-2 j w tau)     residual one-way delay tau left in the reference plane
@@ -23,7 +24,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .constants import TWO_PI
+from .constants import C0_M_PER_S, TWO_PI
 from .physics.installation import Installation
 
 
@@ -59,26 +60,27 @@ class AntennaModel:
                                         self.installation, self.mutual_ref_length_m)
 
     def z_terminals(self, f_hz, length_m: float, r_loss_ohm: float = 0.0,
-                    c_feed_f: float = 0.0) -> np.ndarray:
-        """Impedance at the antenna terminals including loss and feed capacitance, ohm."""
+                    c_feed_f: float = 0.0, g_feed_s: float = 0.0) -> np.ndarray:
+        """Impedance at the antenna terminals including loss and the feed shunt, ohm."""
         f = np.asarray(f_hz, float)
         z = self.z_wire(f, length_m) + r_loss_ohm
-        if c_feed_f:
-            z = z / (1.0 + 1j * TWO_PI * f * c_feed_f * z)
+        if c_feed_f or g_feed_s:
+            z = z / (1.0 + (g_feed_s + 1j * TWO_PI * f * c_feed_f) * z)
         return z
 
     def gamma(self, f_hz, length_m: float, r_loss_ohm: float = 0.0, c_feed_f: float = 0.0,
-              delay_s: float = 0.0) -> np.ndarray:
+              delay_s: float = 0.0, g_feed_s: float = 0.0) -> np.ndarray:
         """Reflection seen by the feed line (through the balun), with a residual delay."""
         f = np.asarray(f_hz, float)
-        z = self.z_terminals(f, length_m, r_loss_ohm, c_feed_f) / self.balun_ratio
+        z = self.z_terminals(f, length_m, r_loss_ohm, c_feed_f, g_feed_s) / self.balun_ratio
         g = (z - self.z0_ohm) / (z + self.z0_ohm)
         if delay_s:
             g = g * np.exp(-2j * TWO_PI * f * delay_s)
         return g
 
     def gamma_from_values(self, f_hz, v: dict) -> np.ndarray:
-        return self.gamma(f_hz, v["length_m"], v["r_loss_ohm"], v["c_feed_f"], v["delay_s"])
+        return self.gamma(f_hz, v["length_m"], v["r_loss_ohm"], v["c_feed_f"], v["delay_s"],
+                          v.get("g_feed_s", 0.0))
 
 
 def installed_impedance_fast(f_hz, length_m: float, radius_m: float, installation: Installation,
@@ -100,23 +102,32 @@ def installed_impedance_fast(f_hz, length_m: float, radius_m: float, installatio
     z = surf.impedance(f_hz, length_m, radius_m)
     if installation.kind == "horizontal":
         ref = float(mutual_ref_length_m or length_m)
-        z = z - _image_mutual(np.ascontiguousarray(f_hz, float).tobytes(), ref, radius_m,
-                              installation.height_m)
+        f_grid, re_spline, im_spline = _image_mutual(ref, radius_m, installation.height_m)
+        f = np.asarray(f_hz, float)
+        z = z - (re_spline(f) + 1j * im_spline(f))
     return z
 
 
-@functools.lru_cache(maxsize=64)
-def _image_mutual(f_bytes: bytes, length_m: float, radius_m: float, height_m: float) -> np.ndarray:
+@functools.lru_cache(maxsize=32)
+def _image_mutual(length_m: float, radius_m: float, height_m: float):
+    """Mutual impedance with the ground image, tabulated over the surface's kL range.
+
+    Computed once per (length, radius, height) by the method of moments with
+    101 segments (the mutual term is smooth and far less sensitive to the
+    segment count than the self term, which comes from the 401-segment table)
+    on 241 frequencies, then interpolated with cubic splines: the fit calls it
+    at arbitrary frequencies many times.
+    """
+    from scipy.interpolate import CubicSpline
+
     from .physics.installation import mutual_impedance_parallel
     from .physics.mom import solve_dipole
+    from .physics.surface import KL_MAX, KL_MIN
 
-    f = np.frombuffer(f_bytes, dtype=float)
-    # 101 segments: the mutual term is smooth and far less sensitive to the
-    # segment count than the self term, which comes from the 401-segment surface.
+    f = np.linspace(KL_MIN, KL_MAX, 241) * C0_M_PER_S / (TWO_PI * length_m)
     sol = solve_dipole(f, length_m, radius_m, n_segments=101)
     z = mutual_impedance_parallel(sol, 2.0 * height_m)
-    z.setflags(write=False)
-    return z
+    return f, CubicSpline(f, z.real), CubicSpline(f, z.imag)
 
 
 def model_from_description(desc) -> AntennaModel:

@@ -28,7 +28,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.optimize import brentq
 
-from .antenna_fit import AntennaFit, _propagate, model_match_hz, model_resonance_hz
+from .antenna_fit import AntennaFit, FitError, _propagate, feed_of, match_of, resonance_of
 from .errors import AdviceRefused
 from .features import vswr_bands
 from .sweep import return_loss_db, vswr_from_gamma
@@ -48,7 +48,7 @@ LOADING_SUGGEST_FRACTION = 0.10
 class Predicted:
     """Model prediction of the antenna after the recommended change."""
 
-    f_res_hz: float
+    f_res_hz: float | None
     f_match_hz: float
     return_loss_db_at_target: float
     vswr_at_target: float
@@ -117,15 +117,15 @@ def criterion_hz(af: AntennaFit, length_m: float, criterion: str, guess_hz: floa
     """Criterion frequency of the fitted antenna at electrical length ``length_m``."""
     v = values or af.fit.values
     if criterion == "resonance":
-        return model_resonance_hz(af.model, length_m, v["r_loss_ohm"], v["c_feed_f"], guess_hz)
-    return model_match_hz(af.model, length_m, v["r_loss_ohm"], v["c_feed_f"], guess_hz)
+        return resonance_of(af.model, length_m, v, guess_hz)
+    return match_of(af.model, length_m, v, guess_hz)
 
 
 def solve_length_for(af: AntennaFit, target_hz: float, criterion: str, values=None) -> float:
     """Electrical length that puts the criterion frequency on ``target_hz``."""
     v = values or af.fit.values
     L = v["length_m"]
-    f_now = criterion_hz(af, L, criterion, af.f_res_hz.value, v)
+    f_now = criterion_hz(af, L, criterion, _reference_hz(af), v)
     guess = L * f_now / target_hz  # only a bracket centre; the model decides
     lo, hi = guess * 0.95, guess * 1.05
     fun = lambda x: criterion_hz(af, x, criterion, target_hz, v) - target_hz  # noqa: E731
@@ -161,6 +161,10 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
     AdviceRefused
         The model does not describe the antenna, or the target is unreachable.
     """
+    if criterion == "resonance" and af.f_res_hz is None:
+        raise AdviceRefused(
+            "no trim advice for X = 0: this antenna shows no resonance at its terminals (the feed "
+            "capacitance or loss hides it); aim for the best match instead (--criterion match)")
     if af.fit.adequacy == "inadequate":
         raise AdviceRefused(
             "no trim advice: " + af.fit.adequacy_reason
@@ -168,7 +172,7 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
     notes = list(af.notes)
     v, names, cov = af.fit.values, af.fit.names, af.fit.covariance
     L_now = v["length_m"]
-    f_now = criterion_hz(af, L_now, criterion, af.f_res_hz.value)
+    f_now = criterion_hz(af, L_now, criterion, _reference_hz(af))
     L_goal = solve_length_for(af, target_hz, criterion)
     d_el = L_now - L_goal  # electrical length to remove (negative: add)
     sig_el = _propagate(lambda p: p["length_m"] - solve_length_for(af, target_hz, criterion, p),
@@ -223,6 +227,11 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
     return _with_headline(advice)
 
 
+def _reference_hz(af: AntennaFit) -> float:
+    """The fitted resonance, or the best match where there is no resonance."""
+    return af.f_res_hz.value if af.f_res_hz is not None else af.f_match_hz
+
+
 def _one_sweep_sensitivity(d_el: float, s_prop: float):
     """Sensitivity from one sweep: between 1 (constant end effect) and ``s_prop`` (pure velocity factor).
 
@@ -252,15 +261,19 @@ def cut_resolution_m(arm_m: float) -> float:
 
 def _predict(af: AntennaFit, length_m: float, target_hz: float, vswr_limit: float) -> Predicted:
     v = af.fit.values
-    R, C = v["r_loss_ohm"], v["c_feed_f"]
-    f_res = model_resonance_hz(af.model, length_m, R, C, target_hz)
-    f_match = model_match_hz(af.model, length_m, R, C, target_hz)
-    g_t = af.model.gamma(np.array([target_hz]), length_m, R, C)[0]
+    fd = feed_of(v)
+    try:
+        f_res = resonance_of(af.model, length_m, v, target_hz)
+    except FitError:
+        f_res = None
+    f_match = match_of(af.model, length_m, v, target_hz)
+    gamma = lambda f: af.model.gamma(f, length_m, fd["r_loss_ohm"], fd["c_feed_f"], 0.0, fd["g_feed_s"])  # noqa: E731
+    g_t = gamma(np.array([target_hz]))[0]
     f = target_hz * np.linspace(0.75, 1.25, 1001)
-    bands = vswr_bands(f, af.model.gamma(f, length_m, R, C), vswr_limit)
+    bands = vswr_bands(f, gamma(f), vswr_limit)
     band = next((b for b in bands if b.f_lo_hz <= target_hz <= b.f_hi_hz), None)
     return Predicted(
-        f_res_hz=float(f_res), f_match_hz=float(f_match),
+        f_res_hz=None if f_res is None else float(f_res), f_match_hz=float(f_match),
         return_loss_db_at_target=float(return_loss_db(g_t)),
         vswr_at_target=float(vswr_from_gamma(g_t)),
         band_lo_hz=band.f_lo_hz if band else None, band_hi_hz=band.f_hi_hz if band else None,
@@ -271,7 +284,7 @@ def _predict(af: AntennaFit, length_m: float, target_hz: float, vswr_limit: floa
 def _proportional_rule(af: AntennaFit, target_hz: float, criterion: str) -> float | None:
     """The plain rule: physical length scales as 1/f from the measured crossing (or the fit)."""
     f_meas = af.measured_crossing_hz if criterion == "resonance" else None
-    f_meas = f_meas or (af.f_match_hz if criterion == "match" else af.f_res_hz.value)
+    f_meas = f_meas or (af.f_match_hz if criterion == "match" else _reference_hz(af))
     built = af.built_length_m
     return float((built - built * f_meas / target_hz) / af.n_ends)
 

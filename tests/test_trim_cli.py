@@ -38,7 +38,7 @@ def test_trim_json_schema_and_consistency(tmp_path, capsys):
     assert adv["action"] in ("cut", "first-cut")
     assert adv["total_m"] == pytest.approx(2 * adv["per_arm_m"])
     assert adv["n_ends"] == 2
-    assert set(out["fit"]["fit"]["parameters"]) == {"length_m", "r_loss_ohm", "c_feed_f", "delay_s"}
+    assert set(out["fit"]["fit"]["parameters"]) == {"length_m", "r_loss_ohm", "c_feed_f", "g_feed_s", "delay_s"}
     assert out["antenna"]["antenna"]["arm_length_m"] == pytest.approx(0.510)
 
 
@@ -47,7 +47,7 @@ def test_trim_text_says_cut_per_arm_and_total_first(tmp_path, capsys):
     assert main(["trim", path, "--arm", "510mm", *OPTS]) == 0
     text = capsys.readouterr().out.splitlines()
     headline = text[2].strip()  # title, blank line, then the answer
-    assert headline.startswith("CUT ") and "from EACH arm" in headline and "total)" in headline
+    assert headline.startswith(("CUT ", "FIRST CUT ")) and "from EACH arm" in headline and "total)" in headline
     joined = "\n".join(text)
     assert "proportional rule" in joined and "Safety:" in joined
 

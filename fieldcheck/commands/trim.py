@@ -95,7 +95,7 @@ def _emit(args, source, desc, af, advice, hist):
             "source": source,
             "advice": advice.to_dict(),
             "fit": af.to_dict(),
-            "shift": shift.to_dict(),
+            "shift": shift.to_dict() if shift else None,
             "antenna": desc.to_dict(),
         }
         if hist is not None:

@@ -27,9 +27,12 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
     ]
     if af.measured_crossing_hz:
         rows.append(("X = 0 on the trace", mhz(af.measured_crossing_hz)))
+    if af.f_res_hz is not None:
+        rows.append(("fitted resonance", f"{mhz(af.f_res_hz.value)} ± {af.f_res_hz.stderr / 1e3:.1f} kHz "
+                                         "(X = 0 at the antenna terminals)"))
+    else:
+        rows.append(("fitted resonance", "none: no X = 0 at the terminals (feed C or loss hides it)"))
     rows += [
-        ("fitted resonance", f"{mhz(af.f_res_hz.value)} ± {af.f_res_hz.stderr / 1e3:.1f} kHz "
-                             "(X = 0 at the antenna terminals)"),
         ("best match", f"{mhz(af.f_match_hz)} (seen by the feed line)"),
         ("electrical length", f"{mm(v['length_m'])} ± {mm(e['length_m'])} vs built "
                               f"{mm(af.built_length_m)} ({'tip to tip' if n == 2 else 'height'})"),
@@ -38,20 +41,22 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
         ("loss resistance", f"{v['r_loss_ohm']:.2f} ± {e['r_loss_ohm']:.2f} ohm"),
         ("radiation efficiency", f"{af.efficiency.value * 100:.1f} % ± {af.efficiency.stderr * 100:.1f} %"),
         ("feed capacitance", f"{v['c_feed_f'] * 1e12:.2f} ± {e['c_feed_f'] * 1e12:.2f} pF"),
+        ("feed shunt loss", f"{_shunt_ohm(v['g_feed_s'])} shunt, {af.feed_shunt_loss * 100:.1f} % of the power"),
         ("residual delay", f"{v['delay_s'] * 1e9:+.3f} ± {e['delay_s'] * 1e9:.3f} ns "
                            f"(= {v['delay_s'] * C0_M_PER_S * 100:+.1f} cm of air line, one way)"),
         ("model fit", f"{af.fit.adequacy}: {af.fit.adequacy_reason}"),
     ]
     lines += table(rows)
-    lines.append("")
-    lines.append("Why it differs from the design")
-    lines += table([
-        ("design (bare wire, as built)", mhz(shift.design_hz)),
-        ("from electrical length", f"{shift.length_part_hz / 1e6:+.3f} MHz (length error, end effect, "
-                                   "insulation, supports)"),
-        ("from feed C and loss", f"{shift.feed_part_hz / 1e6:+.3f} MHz"),
-        ("fitted resonance", mhz(shift.measured_hz)),
-    ])
+    if shift is not None:
+        lines.append("")
+        lines.append("Why it differs from the design")
+        lines += table([
+            ("design (bare wire, as built)", mhz(shift.design_hz)),
+            ("from electrical length", f"{shift.length_part_hz / 1e6:+.3f} MHz (length error, end effect, "
+                                       "insulation, supports)"),
+            ("from the feed (C, loss)", f"{shift.feed_part_hz / 1e6:+.3f} MHz"),
+            ("fitted resonance", mhz(shift.measured_hz)),
+        ])
     if history is not None:
         lines.append("")
         lines.append("Trim history")
@@ -67,7 +72,7 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
     lines.append("After the change (model prediction)" if advice.action != "none" else "As it is (model)")
     rows = [
         ("best match", mhz(p.f_match_hz)),
-        ("resonance", mhz(p.f_res_hz)),
+        ("resonance", mhz(p.f_res_hz) if p.f_res_hz is not None else "none (no X = 0 at the terminals)"),
         (f"at {mhz(advice.target_hz)}", f"return loss {p.return_loss_db_at_target:.1f} dB, "
                                         f"VSWR {p.vswr_at_target:.2f}"),
     ]
@@ -89,6 +94,10 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
     lines.append(f"Sensitivity: {advice.sensitivity_source}.")
     lines.append(SAFETY_TRIM)
     return "\n".join(lines)
+
+
+def _shunt_ohm(g_s: float) -> str:
+    return "no" if g_s <= 1e-9 else f"{1 / g_s:,.0f} ohm"
 
 
 def advice_margin(advice) -> str:
