@@ -22,6 +22,8 @@ COMMAND_MODULES = (
     "locate",
     "wheeler",
     "predict",
+    "simulate",
+    "diagnose",
 )
 
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT = 0, 1, 2

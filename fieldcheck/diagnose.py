@@ -1,0 +1,488 @@
+"""Why does the antenna not match?  Ranked causes with evidence and the next check.
+
+:func:`diagnose` gathers model-free observations of a sweep (reactance
+crossings, winding about the Smith chart centre, trace noise, ripple,
+discontinuities, |S11| > 1), adds the physics expectations when an antenna
+description is given (as-built resonance, radiation plus conductor-loss
+resistance, a fit of the antenna model), runs time-domain reflectometry on
+the raw sweep when the cable's velocity factor is known, and passes all of it
+to the signatures of :mod:`fieldcheck.diagnose_signatures`.  Each signature
+scores its own evidence; the causes are ranked by that score.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+
+import numpy as np
+
+from . import diagnose_signatures as sig
+from . import features
+from .constants import C0_M_PER_S, TWO_PI
+from .diagnose_signatures import Cause
+from .errors import FieldcheckError, FitError, InputError
+from .fit import NOISE_FLOOR, estimate_noise_sigma
+from .sweep import Sweep, impedance_from_gamma
+
+#: Polynomial degree used to detrend Gamma(f) before looking for ripple when no
+#: model fit is available; with at least RIPPLE_MIN_CYCLES_MODEL_FREE cycles in
+#: the span the polynomial cannot follow the ripple (common practice, no source).
+DETREND_DEGREE = 4
+RIPPLE_MIN_CYCLES_MODEL_FREE = 3.0
+#: With a fit residual, the model has already removed the antenna; the fit's
+#: delay parameter can absorb about one cycle, so start above two.
+RIPPLE_MIN_CYCLES_FIT = 2.5
+#: A fitted residual delay is believed only from a fit this close to the data
+#: (RMS |Gamma| misfit; twice the fit's own 'inadequate' limit, common practice,
+#: no source), and one that finds a resonance: a broken antenna fitted badly can
+#: park any value in the delay.
+DELAY_FIT_RMS_MAX = 0.08
+
+#: Cause A at or above 50 % *explains* the causes listed for it: their evidence
+#: is read through A's fault (a trace read through a wrong reference plane shows
+#: a false resonance shift, a broken arm raises R and moves X = 0, a cable fault
+#: hides the antenna, a bad calibration distorts everything).  An explained
+#: cause is ranked one margin unit below A and at most at 50 %.
+EXPLAINS = {
+    "cable-fault": ("resonance-shift", "excess-resistance", "low-resistance", "balun-ratio",
+                    "shorted-feed", "open-element", "resonance-outside", "reference-plane",
+                    "common-mode", "cable-mismatch"),
+    "calibration": ("resonance-shift", "excess-resistance", "low-resistance", "balun-ratio",
+                    "reference-plane", "common-mode", "cable-mismatch"),
+    "low-signal": ("common-mode", "cable-mismatch", "calibration"),
+    "reference-plane": ("resonance-shift", "excess-resistance", "low-resistance",
+                        "balun-ratio"),
+    "open-element": ("resonance-shift", "excess-resistance", "low-resistance",
+                     "resonance-outside"),
+    "shorted-feed": ("resonance-outside", "low-resistance"),
+    "balun-ratio": ("resonance-shift",),
+    "common-mode": ("resonance-shift", "excess-resistance", "low-resistance", "balun-ratio"),
+}
+
+__all__ = ["Cause", "Diagnosis", "diagnose", "observe"]
+
+
+@dataclass(frozen=True)
+class Diagnosis:
+    """Ranked causes of a mismatch.
+
+    Attributes
+    ----------
+    causes : tuple of Cause
+        Most likely first (see :mod:`fieldcheck.diagnose_signatures` for the scores).
+    summary : dict
+        Key numbers behind the causes, SI units in the key names.
+    notes : tuple of str
+        What could not be checked, and why.
+    """
+
+    causes: tuple
+    summary: dict = field(default_factory=dict)
+    notes: tuple = ()
+
+    @property
+    def top(self) -> Cause:
+        return self.causes[0]
+
+    def to_dict(self) -> dict:
+        return {"causes": [c.to_dict() for c in self.causes], "summary": dict(self.summary),
+                "notes": list(self.notes)}
+
+
+@dataclass(frozen=True)
+class Observations:
+    """Everything the signatures look at (built by :func:`observe`).
+
+    Frequencies in Hz, impedances in ohm, delays in s, lengths in m; ``None``
+    where not available (no description, no fit, no cable).
+    """
+
+    f_hz: np.ndarray
+    gamma: np.ndarray               # at the antenna-side reference plane
+    z_ohm: np.ndarray               # line side (as measured, before the balun ratio)
+    z0_ohm: float
+    balun_ratio: float
+    noise_sigma: float
+    variation: float                # RMS deviation of Gamma from its mean
+    raw_gamma: np.ndarray           # before any reference-plane removal
+    series_crossings: tuple         # (f_hz, r_ohm) of X rising through 0, antenna side
+    f_design_hz: float | None = None
+    r_expected_ohm: float | None = None
+    r_loss_expected_ohm: float | None = None
+    built_length_m: float | None = None
+    n_ends: int | None = None
+    fit: object | None = None        # AntennaFit, None when no description or the fit failed
+    fit_problem: str | None = None
+    residual_delay_s: float | None = None
+    residual_delay_stderr_s: float | None = None
+    winding_turns: float = 0.0
+    ripple: tuple | None = None      # (amplitude, period_hz, snr, at_edge)
+    steps: tuple = ()                # (f_hz, jump) of discontinuities
+    tdr: object | None = None        # TdrResult on the raw sweep
+    cable_length_m: float | None = None
+    cable_vf: float | None = None
+    notes: tuple = ()
+
+    def measured_resonance(self):
+        """(f_hz, r_ohm, how) of the resonance to compare with the design, or None."""
+        fit = self.fit
+        if fit is not None and fit.fit.adequacy != "inadequate" and fit.f_res_hz is not None:
+            return fit.f_res_hz.value, fit.r_at_res_ohm, "fitted"
+        if not self.series_crossings:
+            return None
+        ref = self.f_design_hz or float(np.median(self.f_hz))
+        usable = [c for c in self.series_crossings if self.r_expected_ohm is None
+                  or 0 < c[1] < sig.PLAUSIBLE_R_FACTOR * self.r_expected_ohm]
+        if not usable:
+            return None
+        f, r = min(usable, key=lambda c: abs(math.log(c[0] / ref)))
+        return f, r, "read off the trace"
+
+
+# ---- observations (pure helpers) -------------------------------------------------
+def winding_turns(gamma: np.ndarray) -> float:
+    """Net turns of Gamma about the Smith chart centre over the sweep (dimensionless)."""
+    ph = np.unwrap(np.angle(np.asarray(gamma)))
+    return float(abs(ph[-1] - ph[0]) / TWO_PI)
+
+
+def phase_slope_delay_s(f_hz: np.ndarray, gamma_meas: np.ndarray, gamma_model: np.ndarray) -> float:
+    """One-way delay (s) that best explains the phase of measured over model Gamma.
+
+    A line of one-way delay tau multiplies Gamma by exp(-2 j w tau) (Pozar,
+    Microwave Engineering, 4th ed., section 2.3), so the unwrapped phase of
+    Gamma_meas conj(Gamma_model) falls as -4 pi f tau; the slope is found by
+    least squares weighted by |Gamma_meas Gamma_model| (phase is noisy where
+    either is small).
+    """
+    prod = np.asarray(gamma_meas) * np.conj(np.asarray(gamma_model))
+    ph = np.unwrap(np.angle(prod))
+    w = np.abs(prod)
+    if not np.any(w > 0):
+        return 0.0
+    slope = np.polyfit(np.asarray(f_hz, float), ph, 1, w=np.sqrt(w))[0]
+    return float(-slope / (2.0 * TWO_PI))
+
+
+def ripple_peak(f_hz: np.ndarray, x: np.ndarray, noise_sigma: float, min_cycles: float):
+    """Strongest periodic component of a complex trace, by a direct windowed transform.
+
+    Parameters
+    ----------
+    f_hz : ndarray
+        Frequencies, Hz (any grid; the transform is evaluated directly).
+    x : ndarray of complex
+        Trace with its smooth part removed, Gamma units.
+    noise_sigma : float
+        Noise per real component of ``x``, Gamma units.
+    min_cycles : float
+        Only periods with at least this many cycles in the span are searched.
+
+    Returns
+    -------
+    tuple or None
+        (amplitude in Gamma, period in Hz, amplitude over the noise standard
+        deviation of the transform, peak on the edge of the search range).
+    """
+    f = np.asarray(f_hz, float)
+    span = f[-1] - f[0]
+    step = span / (f.size - 1)
+    t_lo, t_hi = min_cycles / span, 0.5 / step
+    if f.size < 16 or t_hi <= t_lo:
+        return None
+    tau = np.arange(t_lo, t_hi, 1.0 / (8.0 * span))
+    w = np.hanning(f.size + 2)[1:-1]
+    xs = (np.asarray(x) - np.average(x, weights=w)) * w
+    # Both signs of delay: a ripple term a exp(-j 2 pi f tau) appears at +tau.
+    kern = np.exp(2j * np.pi * np.outer(tau, f - f[0]))
+    a = np.maximum(np.abs(kern @ xs), np.abs(np.conj(kern) @ xs)) / w.sum()
+    i = int(np.argmax(a))
+    noise = max(noise_sigma, NOISE_FLOOR) * math.sqrt(2.0 * np.sum(w ** 2)) / w.sum()
+    at_edge = i == 0 or i == tau.size - 1
+    return float(a[i]), float(1.0 / tau[i]), float(a[i] / noise), bool(at_edge)
+
+
+def find_steps(f_hz: np.ndarray, gamma: np.ndarray) -> tuple:
+    """Discontinuities: jumps between adjacent points far beyond the trace's own change.
+
+    The jump statistic ``j_i = d_i - (d_{i-1} + d_{i+1}) / 2`` (``d`` the first
+    difference) is a third difference: near zero on any smooth trace, about
+    the step size at a step.  A jump counts when it exceeds
+    ``CAL_STEP_SIGMAS`` robust standard deviations (1.4826 MAD) of the
+    statistic and ``CAL_STEP_MIN_GAMMA``.
+
+    Returns
+    -------
+    tuple of (f_hz, jump)
+        Frequency between the two points of each jump (Hz) and |jump| (Gamma units).
+    """
+    g = np.asarray(gamma)
+    if g.size < 8:
+        return ()
+    d = np.diff(g)
+    j = d[1:-1] - 0.5 * (d[:-2] + d[2:])
+    parts = np.concatenate([j.real, j.imag])
+    scale = max(1.4826 * float(np.median(np.abs(parts - np.median(parts)))), NOISE_FLOOR)
+    mag = np.abs(j)
+    hit = np.flatnonzero((mag > sig.CAL_STEP_SIGMAS * scale) & (mag > sig.CAL_STEP_MIN_GAMMA))
+    out = []
+    for i in hit:
+        lo, hi = max(i - 2, 0), min(i + 3, mag.size)
+        if mag[i] < mag[lo:hi].max():
+            continue  # a side lobe of a larger jump
+        k = i + 1  # the jump is between points k and k + 1
+        out.append((float(0.5 * (f_hz[k] + f_hz[k + 1])), float(mag[i])))
+    return tuple(out)
+
+
+def _detrended(f_hz, gamma):
+    u = (f_hz - f_hz.mean()) / (0.5 * (f_hz[-1] - f_hz[0]))
+    deg = min(DETREND_DEGREE, f_hz.size - 2)
+    smooth = (np.polyval(np.polyfit(u, gamma.real, deg), u)
+              + 1j * np.polyval(np.polyfit(u, gamma.imag, deg), u))
+    return gamma - smooth
+
+
+def _design(desc, notes):
+    """Expected resonance, resistance and loss of the as-built antenna, or Nones."""
+    from .antenna_fit import _len_factor, model_resonance_hz
+    from .model import model_from_description
+    from .physics import loss, materials
+
+    model = model_from_description(desc)
+    form = desc.antenna.form
+    built = desc.antenna.total_length_m if form == "dipole" else desc.antenna.arm_length_m
+    k = _len_factor(model)
+    f_d = model_resonance_hz(model, built, 0.0, 0.0, C0_M_PER_S / (2.0 * built * k))
+    r_rad = float(model.z_wire(np.array([f_d]), built)[0].real)
+    r_loss = 0.0
+    try:
+        mat = materials.get_material(desc.antenna.material)
+        wire_m = built * k  # a monopole images to a dipole of twice its height
+        rp = loss.resistance_per_m(f_d, desc.antenna.radius_m, mat)
+        # Sinusoidal current (Balanis, Antenna Theory, 4th ed., eq. 2-90b generalised).
+        r_loss = float(loss.sinusoidal_loss_resistance(TWO_PI * f_d * wire_m / C0_M_PER_S,
+                                                       wire_m, rp)) / k
+    except FieldcheckError as exc:
+        notes.append(f"conductor loss not estimated: {exc}")
+    if desc.antenna.insulation is not None:
+        notes.append("the model has no wire insulation: a jacket lowers the resonance by a "
+                     "few percent, read a small downward shift with that in mind")
+    return model, float(built), (2 if form == "dipole" else 1), float(f_d), r_rad + r_loss, r_loss
+
+
+def _fit(sweep: Sweep, desc, model, built, r_loss, notes):
+    """Fit the antenna; when that fails, try again after removing a phase-slope delay estimate."""
+    from .antenna_fit import fit_antenna
+
+    fit0, err0 = None, None
+    try:
+        fit0 = fit_antenna(sweep, desc)
+    except FitError as exc:
+        err0 = str(exc)
+    if fit0 is not None and fit0.fit.adequacy == "good":
+        return fit0, 0.0, None
+    g_model = model.gamma(sweep.f_hz, built, r_loss, 0.0)
+    t_est = phase_slope_delay_s(sweep.f_hz, sweep.s11, g_model)
+    best, t_pre = fit0, 0.0
+    if abs(t_est) * C0_M_PER_S > sig.REFPLANE_MIN_M:
+        moved = sweep.with_s11(sweep.s11 * np.exp(2j * TWO_PI * sweep.f_hz * t_est),
+                               note=f"diagnosis: trial removal of {t_est * 1e9:.3f} ns")
+        try:
+            fit1 = fit_antenna(moved, desc)
+            if fit1.fit.residual_rms < DELAY_FIT_RMS_MAX and (
+                    fit0 is None or fit1.fit.residual_rms < 0.5 * fit0.fit.residual_rms):
+                best, t_pre = fit1, t_est
+                notes.append(f"the model fits only after removing a further {t_est * 1e9:.3f} ns "
+                             "one-way delay (phase-slope estimate)")
+        except FitError:
+            pass
+    problem = None
+    if best is None:
+        problem = err0
+        notes.append(f"no model fit: {err0}")
+    elif best.fit.adequacy == "inadequate":
+        problem = best.fit.adequacy_reason
+    return best, t_pre, problem
+
+
+def observe(sweep: Sweep, desc=None, *, raw_sweep: Sweep | None = None,
+            cable_vf: float | None = None, cable=None) -> Observations:
+    """Collect the observations the signatures need (see :func:`diagnose`)."""
+    from . import tdr as _tdr
+
+    notes: list[str] = []
+    raw = raw_sweep if raw_sweep is not None else sweep
+    f, g = sweep.f_hz, sweep.s11
+    balun = desc.feed.balun_ratio if desc is not None else 1.0
+    z_line = sweep.z_ohm
+    crossings = tuple((c.f_hz, c.r_ohm) for c in features.reactance_crossings(f, z_line * balun)
+                      if c.kind == "series")
+    kw: dict = {}
+    fit, t_pre = None, 0.0
+    if desc is not None:
+        try:
+            model, built, n_ends, f_d, r_exp, r_loss = _design(desc, notes)
+            kw.update(f_design_hz=f_d, r_expected_ohm=r_exp, r_loss_expected_ohm=r_loss,
+                      built_length_m=built, n_ends=n_ends)
+            fit, t_pre, problem = _fit(sweep, desc, model, built, r_loss, notes)
+            kw["fit_problem"] = problem
+        except FieldcheckError as exc:
+            notes.append(f"physics expectations not available: {exc}")
+    if fit is not None and fit.fit.residual_rms < DELAY_FIT_RMS_MAX and fit.f_res_hz is not None:
+        kw["residual_delay_s"] = t_pre + fit.fit.values["delay_s"]
+        kw["residual_delay_stderr_s"] = fit.fit.stderr["delay_s"] or None
+    t_known = kw.get("residual_delay_s") or 0.0
+    turns = winding_turns(g)
+    t_flat = t_known
+    if not t_known and turns > sig.REFPLANE_MAX_TURNS:
+        # Model free: a line left in front dominates the phase slope; take it out
+        # before looking for ripple and noise (it is reported from the winding).
+        t_flat = phase_slope_delay_s(f, g, np.ones_like(g))
+    g_flat = g * np.exp(2j * TWO_PI * f * t_flat)
+    if abs(t_known) * C0_M_PER_S > sig.REFPLANE_MIN_M:
+        # Read the trace at the antenna: with the residual delay removed.
+        z_line = impedance_from_gamma(g_flat, sweep.z0_ohm)
+        crossings = tuple((c.f_hz, c.r_ohm) for c in
+                          features.reactance_crossings(f, z_line * balun) if c.kind == "series")
+        notes.append(f"trace readings (resonance, reactance) taken after removing the residual "
+                     f"delay of {t_known * 1e9:.3f} ns")
+    sigma = estimate_noise_sigma(g_flat)
+    variation = float(np.sqrt(np.mean(np.abs(g - g.mean()) ** 2)))
+    if fit is not None:
+        ripple = ripple_peak(fit.fit.f_hz, fit.fit.residual, sigma, RIPPLE_MIN_CYCLES_FIT)
+    else:
+        ripple = ripple_peak(f, _detrended(f, g_flat), sigma, RIPPLE_MIN_CYCLES_MODEL_FREE)
+    vf = cable_vf if cable_vf is not None else (cable.velocity_factor if cable is not None else None)
+    length = cable.length_m if cable is not None else None
+    tdr_res = None
+    if vf is not None:
+        if not raw.is_uniform:
+            notes.append("time-domain cable check skipped: the sweep is not evenly stepped")
+        else:
+            try:
+                tdr_res = _tdr.locate_reflections(
+                    raw, vf, loss_db_per_100m=cable.loss_db_per_100m if cable else 0.0,
+                    loss_ref_hz=cable.loss_ref_hz if cable else None, cable_length_m=length)
+                notes.extend(tdr_res.notes)
+            except FieldcheckError as exc:
+                notes.append(f"time-domain cable check skipped: {exc}")
+    return Observations(
+        f_hz=f, gamma=g, z_ohm=z_line, z0_ohm=sweep.z0_ohm, balun_ratio=balun,
+        noise_sigma=sigma, variation=variation, raw_gamma=raw.s11,
+        series_crossings=crossings, fit=fit, winding_turns=turns,
+        ripple=ripple, steps=find_steps(raw.f_hz, raw.s11), tdr=tdr_res,
+        cable_length_m=length, cable_vf=vf, notes=tuple(notes), **kw)
+
+
+# ---- ranking -----------------------------------------------------------------------
+def rank(o: Observations) -> tuple:
+    """Run every signature, keep those above REPORT_MIN_CONFIDENCE, most likely first."""
+    found = [c for c in (s(o) for s in sig.SIGNATURES) if c is not None]
+    found += sig.cable_faults(o)
+    found = _explain(found)
+    found = [c for c in found if c.confidence >= sig.REPORT_MIN_CONFIDENCE]
+    top = max(found, key=lambda c: c.margin, default=None)
+    if top is None or top.confidence < sig.NO_FAULT_BELOW:
+        found.append(_no_fault(o, top))
+    return tuple(sorted(found, key=lambda c: -c.margin))
+
+
+def _explain(causes: list) -> list:
+    """Demote causes explained by a stronger one (see :data:`EXPLAINS`)."""
+    out = []
+    for c in causes:
+        by = [a for a in causes if a.confidence >= 0.5 and c.code in EXPLAINS.get(a.code, ())]
+        if by:
+            a = max(by, key=lambda a: a.margin)
+            z = min(c.margin, a.margin - 1.0, 0.0)
+            if z < c.margin:
+                c = replace(c, margin=z, confidence=sig.confidence(z),
+                            evidence=c.evidence + (f"(ranked below '{a.title}', which would "
+                                                   "also explain this.)",))
+        out.append(c)
+    return out
+
+
+def _no_fault(o: Observations, top: Cause | None) -> Cause:
+    ev = [f"trace noise {o.noise_sigma:.1e} per component; largest |S11| "
+          f"{np.abs(o.raw_gamma).max():.3f}."]
+    meas = o.measured_resonance()
+    if meas is not None and o.f_design_hz:
+        ev.append(f"resonance {meas[2]} at {meas[0] / 1e6:.5g} MHz, "
+                  f"{100 * (meas[0] / o.f_design_hz - 1):+.2f} % from the as-built design.")
+    if meas is not None and o.r_expected_ohm:
+        ev.append(f"resistance at resonance {meas[1]:.1f} ohm, expected {o.r_expected_ohm:.1f} ohm.")
+    if o.fit is not None:
+        ev.append(f"model fit: {o.fit.fit.adequacy} ({o.fit.fit.adequacy_reason}).")
+    if o.tdr is not None:
+        ev.append(f"{len(o.tdr.peaks)} reflection(s) along the cable, none a fault.")
+    # 1 - logistic(z) = logistic(-z): the no-fault margin mirrors the strongest suspicion.
+    z = 3.0 if top is None else -top.margin
+    ev.append(f"strongest other suspicion: {top.title} at {100 * top.confidence:.0f} %."
+              if top is not None else f"no signature reached {100 * sig.REPORT_MIN_CONFIDENCE:.0f} %.")
+    nxt = ("Compare the match with the target; if it is still not what you need, trim as "
+           "advised or sweep again with the antenna in its final position.")
+    return sig._cause("no-fault", "no fault found", z, ev, nxt)
+
+
+def _summary(o: Observations) -> dict:
+    g = o.gamma
+    i = int(np.argmin(np.abs(g)))
+    meas = o.measured_resonance()
+    s = {
+        "f_start_hz": float(o.f_hz[0]), "f_stop_hz": float(o.f_hz[-1]),
+        "n_points": int(o.f_hz.size),
+        "best_match_hz": float(o.f_hz[i]),
+        "best_return_loss_db": float(-20 * np.log10(max(abs(g[i]), 1e-12))),
+        "max_abs_s11": float(np.abs(o.raw_gamma).max()),
+        "noise_sigma": o.noise_sigma, "trace_variation": o.variation,
+        "series_resonances_hz": [c[0] for c in o.series_crossings],
+        "winding_turns": o.winding_turns,
+        "f_design_hz": o.f_design_hz, "r_expected_ohm": o.r_expected_ohm,
+        "r_loss_expected_ohm": o.r_loss_expected_ohm,
+        "f_res_hz": meas[0] if meas else None, "r_at_res_ohm": meas[1] if meas else None,
+        "resonance_from": meas[2] if meas else None,
+        "residual_delay_s": o.residual_delay_s,
+        "fit_adequacy": o.fit.fit.adequacy if o.fit is not None else None,
+        "ripple": (dict(zip(("amplitude", "period_hz", "snr", "at_edge"), o.ripple))
+                   if o.ripple else None),
+        "steps": [{"f_hz": a, "jump": b} for a, b in o.steps],
+        "tdr": o.tdr.to_dict() if o.tdr is not None else None,
+        "cable_length_m": o.cable_length_m, "cable_vf": o.cable_vf,
+    }
+    return s
+
+
+def diagnose(sweep: Sweep, desc=None, *, raw_sweep: Sweep | None = None,
+             cable_vf: float | None = None, cable=None) -> Diagnosis:
+    """Rank the likely causes of an unexpected mismatch.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        Sweep at the antenna (or balun) terminals: reference plane already moved.
+    desc : fieldcheck.antenna.Description, optional
+        What was built.  Without it only model-free signatures run.
+    raw_sweep : Sweep, optional
+        The same measurement before the reference plane was moved (for the
+        calibration check and time-domain reflectometry); default ``sweep``.
+    cable_vf : float, optional
+        Velocity factor of the feed cable (dimensionless, 0 < VF <= 1); turns
+        on the time-domain cable check.  Default: that of ``cable``.
+    cable : fieldcheck.refplane.Cable, optional
+        The feed cable (length m, VF, loss); its length tells a fault from the far end.
+
+    Returns
+    -------
+    Diagnosis
+    """
+    if cable_vf is not None and not (math.isfinite(cable_vf) and 0.0 < cable_vf <= 1.0):
+        raise InputError(f"cable velocity factor must satisfy 0 < VF <= 1, got {cable_vf!r}: "
+                         "write e.g. --cable-vf 0.66", sweep.source)
+    if raw_sweep is not None and raw_sweep.f_hz.shape != sweep.f_hz.shape:
+        raise InputError("the raw sweep and the sweep at the antenna must share one frequency "
+                         "grid", sweep.source)
+    o = observe(sweep, desc, raw_sweep=raw_sweep, cable_vf=cable_vf, cable=cable)
+    return Diagnosis(causes=rank(o), summary=_summary(o), notes=o.notes)
