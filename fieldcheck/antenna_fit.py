@@ -237,14 +237,18 @@ def fit_antenna(sweep: Sweep, desc, *, model: AntennaModel | None = None) -> Ant
                      f"({f_all[sel][0] / 1e6:.6g}..{f_all[sel][-1] / 1e6:.6g} MHz) around the resonance")
     f, g = f_all[sel], g_line[sel]
 
-    tau_max = 0.25 / f_start  # a half-turn of phase either way at the resonance
+    # Residual delay: start from the phase slope of measured over model
+    # reflection, and allow half a turn of round-trip phase either way of it.
+    tau0 = _phase_slope_delay_s(f, g, model.gamma(f, length0))
+    tau_span = 0.25 / f_start
+    tau_bounds = (tau0 - tau_span, tau0 + tau_span)
     if model.installation.kind == "horizontal":
         model = replace(model, mutual_ref_length_m=length0)
-    res = _fit_once(model, f, g, length0, lo_len, hi_len, tau_max)
+    res = _fit_once(model, f, g, length0, lo_len, hi_len, tau_bounds, tau0)
     if model.installation.kind == "horizontal":
         # Re-evaluate the ground-image mutual impedance at the fitted length.
         model = replace(model, mutual_ref_length_m=res.values["length_m"])
-        res = _fit_once(model, f, g, res.values["length_m"], lo_len, hi_len, tau_max,
+        res = _fit_once(model, f, g, res.values["length_m"], lo_len, hi_len, tau_bounds, tau0,
                         start=res.values)
     if res.at_bounds:
         notes.append("parameters at a bound of the fit: " + ", ".join(res.at_bounds)
@@ -272,7 +276,24 @@ def _start_frequency(f, z_ant, g_line, f_design, notes):
         "re-sweep around the expected resonance, or run 'fieldcheck diagnose'")
 
 
-def _fit_once(model, f, g, length0, lo_len, hi_len, tau_max, start=None):
+def _phase_slope_delay_s(f_hz, g_meas, g_model) -> float:
+    """One-way delay that best explains the phase of g_meas / g_model as -2 w tau.
+
+    Weighted by |g_meas g_model| so the noisy phase of a near-perfect match
+    counts little; a least-squares line through the unwrapped phase (its
+    intercept is free: a constant phase is not a delay).
+    """
+    ratio = g_meas * np.conj(g_model)
+    w = np.abs(ratio)
+    if not np.any(w > 0):
+        return 0.0
+    phase = np.unwrap(np.angle(ratio))
+    omega = TWO_PI * f_hz
+    slope, _ = np.polyfit(omega, phase, 1, w=np.sqrt(w))
+    return float(-slope / 2.0)
+
+
+def _fit_once(model, f, g, length0, lo_len, hi_len, tau_bounds, tau0=0.0, start=None):
     start = start or {}
 
     def spec(name, unit, default, lo, hi):
@@ -283,7 +304,7 @@ def _fit_once(model, f, g, length0, lo_len, hi_len, tau_max, start=None):
         spec("r_loss_ohm", "ohm", 0.5, 0.0, R_LOSS_MAX_OHM),
         spec("c_feed_f", "F", 0.2e-12, 0.0, C_FEED_MAX_F),
         spec("g_feed_s", "S", 1e-5, 0.0, G_FEED_MAX_S),
-        spec("delay_s", "s", 0.0, -tau_max, tau_max),
+        spec("delay_s", "s", tau0, *tau_bounds),
     ]
     fun = model.gamma_from_values
     best = fit_reflection(f, g, fun, params, systematics=CAL_RESIDUALS)
@@ -291,7 +312,8 @@ def _fit_once(model, f, g, length0, lo_len, hi_len, tau_max, start=None):
         return best
     # A residual delay rotates the trace; when the first start landed far from
     # the data, try starts on both sides of zero too.
-    for tau in (-tau_max / 3, tau_max / 3):
+    third = (tau_bounds[1] - tau_bounds[0]) / 6
+    for tau in (tau0 - third, tau0 + third):
         trial = [p if p.name != "delay_s" else replace(p, initial=tau) for p in params]
         r = fit_reflection(f, g, fun, trial, noise_sigma=best.noise_sigma, systematics=CAL_RESIDUALS)
         if r.chi2 < best.chi2 * (1 - 1e-6):

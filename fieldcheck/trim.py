@@ -17,8 +17,11 @@ Decision rules (all thresholds named below):
    uncertainties, rounded *down* to a sensible resolution.  When that margin
    would leave the result outside the tolerance, the advice is a conservative
    FIRST cut followed by a re-measure.
-3. Too short: say how much to ADD per arm (nominal plus two standard
-   uncertainties, rounded up, since surplus can be trimmed), never a negative cut.
+3. Too short: say how much to ADD per arm (the best estimate, rounded to the
+   resolution: a surplus can be trimmed and a shortfall topped up, so neither
+   side needs a margin), never a negative cut.  Within the tolerance already,
+   a short antenna is left alone; a long one still gets a cut that the margin
+   allows, to centre it.
 """
 
 from __future__ import annotations
@@ -197,19 +200,21 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
     res_m = cut_resolution_m(af.built_length_m / n)
     tol_len = tolerance_pct / 100 * L_goal / s / n  # per-arm length equivalent of the tolerance
 
-    if abs(f_now - target_hz) <= tolerance_pct / 100 * target_hz and abs(nominal) <= tol_len:
-        action, change = "none", 0.0
-    elif nominal > 0:
+    within = abs(f_now - target_hz) <= tolerance_pct / 100 * target_hz
+    if nominal > 0:
         change = np.floor((nominal - SAFETY_SIGMAS * sigma) / res_m) * res_m
         if change <= 0:
-            action, change = "wait", 0.0
-        elif LANDING_SIGMAS * sigma > tol_len:
+            action, change = ("none" if within else "wait"), 0.0
+        elif LANDING_SIGMAS * sigma > tol_len and not within:
             action = "first-cut"
         else:
             action = "cut"
+            if within:
+                notes.append("already within tolerance; this cut centres it on the target")
     else:
-        change = -np.ceil((-nominal + SAFETY_SIGMAS * sigma) / res_m) * res_m
-        action = "add"
+        change = -np.round(-nominal / res_m) * res_m
+        action = "none" if (within or change == 0) else "add"
+        change = 0.0 if action == "none" else change
         if -change > LOADING_SUGGEST_FRACTION * af.built_length_m / n:
             notes.append("that is a lot of wire to add: consider end loading (a capacitance hat "
                          "or loading coil) or a new, longer element")
