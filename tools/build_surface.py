@@ -23,7 +23,7 @@ from fieldcheck.physics import mom  # noqa: E402
 #: Grid: kL a little beyond the supported 0.3..7.5 so the spline ends are outside it.
 KL_MIN, KL_MAX, KL_STEP = 0.2, 7.6, 0.02
 #: L/a grid: log spaced over exactly the validated MoM range.
-N_L_OVER_A = 41
+N_L_OVER_A = 59  # about 18 per decade
 #: Segment count used for the table (the MoM's 0.02 % setting, see mom.py).
 N_SEGMENTS = 401
 FORMAT_VERSION = 1

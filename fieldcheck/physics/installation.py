@@ -110,7 +110,7 @@ def monopole_impedance(f_hz, height_m: float, radius_m: float, n_segments: int |
     height_m : float
         Monopole height above the plane (its physical length), m.
     radius_m : float
-        Wire radius, m; 2 height / radius must lie in 100..20,000.
+        Wire radius, m; 2 height / radius must lie in 100..200,000.
     n_segments : int, optional
         Segment count of the image dipole (see :func:`fieldcheck.physics.mom.solve_dipole`).
 

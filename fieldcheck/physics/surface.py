@@ -3,8 +3,8 @@
 The table (fieldcheck/data/dipole_surface.npz, built by tools/build_surface.py
 with :mod:`fieldcheck.physics.mom` at 401 segments) holds the input admittance
 Y = 1/Z of a centre-fed cylindrical dipole in free space over electrical length
-kL = 2 pi L / lambda (0.2..7.6 step 0.02) and ln(L/a) (41 points over
-L/a = 100..20,000).  Y is interpolated with bicubic splines on its real and
+kL = 2 pi L / lambda (0.2..7.6 step 0.02) and ln(L/a) (59 points over
+L/a = 100..200,000).  Y is interpolated with bicubic splines on its real and
 imaginary parts.  Y, not Z, because Z peaks by two orders of magnitude at the
 full-wave anti-resonance (kL near 2 pi) while Y stays smooth there and near the
 half-wave resonance alike.  Measured on this grid over kL 4.5..7.5 (seeded random
@@ -14,7 +14,7 @@ Accuracy against the method of moments at the build segment count (checked at
 seeded random points in tests/test_surface.py): resonant kL within 0.05 %,
 impedance within 0.5 ohm where |X| < 100 ohm near the first resonance
 (bench/bench_physics.py measures worst 0.0001 % and 0.003 ohm).
-Supported: 0.3 <= kL <= 7.5 and 100 <= L/a <= 20,000; outside it raises.
+Supported: 0.3 <= kL <= 7.5 and 100 <= L/a <= 200,000; outside it raises.
 """
 
 from __future__ import annotations
@@ -34,7 +34,7 @@ from .installation import Installation, installed_impedance
 #: Supported electrical length range (the table extends 0.1 beyond each end).
 KL_MIN, KL_MAX = 0.3, 7.5
 #: Supported length-to-radius range (same as the MoM's validated range).
-L_OVER_A_MIN, L_OVER_A_MAX = 100.0, 20_000.0
+L_OVER_A_MIN, L_OVER_A_MAX = 100.0, 200_000.0
 
 _TABLE = "dipole_surface.npz"
 _RTOL = 1e-9
@@ -153,7 +153,7 @@ def _check_range(kl: np.ndarray, la: np.ndarray) -> None:
                     or la.max() > L_OVER_A_MAX * (1 + _RTOL)):
         raise InputError(
             f"length/radius {np.nanmin(la):.4g} is outside the supported range {L_OVER_A_MIN:g}.."
-            f"{L_OVER_A_MAX:g} (length/diameter 50..10,000); check length and radius")
+            f"{L_OVER_A_MAX:g} (length/diameter 50..100,000); check length and radius")
 
 
 @functools.lru_cache(maxsize=1)
