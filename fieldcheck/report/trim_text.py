@@ -12,11 +12,18 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
     n = advice.n_ends
     arm = "per arm" if n == 2 else "on the element"
     lines = [f"fieldcheck trim: {source}", "", "  " + advice.headline]
-    if advice.action in ("cut", "first-cut", "add"):
+    if advice.action in ("cut", "first-cut"):
         lines.append(
             f"  (needed {mm(abs(advice.nominal_per_arm_m))} ± {mm(advice.sigma_per_arm_m)} {arm}; "
-            f"the advice keeps a {advice_margin(advice)} safety margin and rounds to "
-            f"{mm(advice.resolution_m)})")
+            f"the advice keeps a {advice_margin(advice)} safety margin against over-cutting and "
+            f"rounds down to {mm(advice.resolution_m)})")
+    elif advice.action == "add":
+        lines.append(
+            f"  (needed {mm(abs(advice.nominal_per_arm_m))} ± {mm(advice.sigma_per_arm_m)} {arm}, "
+            f"rounded to {mm(advice.resolution_m)})")
+    elif advice.action == "wait":
+        lines.append(
+            f"  (needed {mm(advice.nominal_per_arm_m)} ± {mm(advice.sigma_per_arm_m)} {arm})")
     lines.append("")
     lines.append("Evidence")
     rows = [
