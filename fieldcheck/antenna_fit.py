@@ -378,7 +378,7 @@ def _derive(res: FitResult, model, built, n_ends, f_all, crossing, notes) -> Ant
         notes.append(f"the fitted {'resonance' if f_res else 'best match'} {f_ref / 1e6:.6g} MHz lies "
                      f"outside the sweep ({f_all[0] / 1e6:.6g}..{f_all[-1] / 1e6:.6g} MHz): results extrapolate")
     if shunt > 0.02:
-        notes.append(f"{shunt * 100:.0f} % of the power is lost in a shunt across the feed (lossy choke or "
+        notes.append(f"{shunt * 100:.1f} % of the power is lost in a shunt across the feed (lossy choke or "
                      "balun core, wet or dirty insulator) before it reaches the antenna")
     return AntennaFit(
         fit=res, model=model, built_length_m=float(built), n_ends=n_ends,

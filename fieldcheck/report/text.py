@@ -7,6 +7,16 @@ def mhz(f_hz: float, digits: int = 3) -> str:
     return f"{f_hz / 1e6:.{digits}f} MHz"
 
 
+def mhz_pm(f_hz: float, sigma_hz: float) -> str:
+    """``138.79 ± 1.59 MHz``: enough decimals to show the uncertainty's leading digit twice."""
+    import math
+
+    if not math.isfinite(sigma_hz) or sigma_hz <= 0:
+        return f"{f_hz / 1e6:.3f} MHz"
+    digits = min(6, max(3, 1 - math.floor(math.log10(sigma_hz / 1e6))))
+    return f"{f_hz / 1e6:.{digits}f} ± {sigma_hz / 1e6:.{digits}f} MHz"
+
+
 def mm(length_m: float, digits: int = 1) -> str:
     return f"{length_m * 1e3:.{digits}f} mm"
 

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from ..constants import C0_M_PER_S
-from .text import SAFETY_TRIM, mhz, mm, signed_mm, table
+from .text import SAFETY_TRIM, mhz, mhz_pm, mm, signed_mm, table
 
 
 def render_trim(source: str, af, advice, shift, history=None) -> str:
@@ -35,7 +35,7 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
     if af.measured_crossing_hz:
         rows.append(("X = 0 on the trace", mhz(af.measured_crossing_hz)))
     if af.f_res_hz is not None:
-        rows.append(("fitted resonance", f"{mhz(af.f_res_hz.value)} ± {af.f_res_hz.stderr / 1e3:.1f} kHz "
+        rows.append(("fitted resonance", f"{mhz_pm(af.f_res_hz.value, af.f_res_hz.stderr)} "
                                          "(X = 0 at the antenna terminals)"))
     else:
         rows.append(("fitted resonance", "none: no X = 0 at the terminals (feed C or loss hides it)"))
