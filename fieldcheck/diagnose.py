@@ -352,6 +352,12 @@ def observe(sweep: Sweep, desc=None, *, raw_sweep: Sweep | None = None,
     variation = float(np.sqrt(np.mean(np.abs(g - g.mean()) ** 2)))
     if fit is not None:
         ripple = ripple_peak(fit.fit.f_hz, fit.fit.residual, sigma, RIPPLE_MIN_CYCLES_FIT)
+        if ripple is not None and fit.fit.adequacy == "inadequate":
+            # A fit that does not describe the antenna has bent itself partly
+            # around the ripple, which biases the period: read it off the trace.
+            trace = ripple_peak(f, _detrended(f, g_flat), sigma, RIPPLE_MIN_CYCLES_MODEL_FREE)
+            if trace is not None and not trace[3]:
+                ripple = (ripple[0], trace[1], ripple[2], ripple[3])
     else:
         ripple = ripple_peak(f, _detrended(f, g_flat), sigma, RIPPLE_MIN_CYCLES_MODEL_FREE)
     vf = cable_vf if cable_vf is not None else (cable.velocity_factor if cable is not None else None)
