@@ -239,7 +239,7 @@ def fit_antenna(sweep: Sweep, desc, *, model: AntennaModel | None = None) -> Ant
 
     # Residual delay: start from the phase slope of measured over model
     # reflection, and allow half a turn of round-trip phase either way of it.
-    tau0 = _phase_slope_delay_s(f, g, model.gamma(f, length0))
+    tau0 = features.phase_slope_delay_s(f, g, model.gamma(f, length0))
     tau_span = 0.25 / f_start
     tau_bounds = (tau0 - tau_span, tau0 + tau_span)
     if model.installation.kind == "horizontal":
@@ -274,23 +274,6 @@ def _start_frequency(f, z_ant, g_line, f_design, notes):
         f"no resonance of this antenna is in or near the sweep ({f[0] / 1e6:.6g}..{f[-1] / 1e6:.6g} MHz; "
         f"as built it should resonate near {f_design / 1e6:.6g} MHz); check the antenna description, "
         "re-sweep around the expected resonance, or run 'fieldcheck diagnose'")
-
-
-def _phase_slope_delay_s(f_hz, g_meas, g_model) -> float:
-    """One-way delay that best explains the phase of g_meas / g_model as -2 w tau.
-
-    Weighted by |g_meas g_model| so the noisy phase of a near-perfect match
-    counts little; a least-squares line through the unwrapped phase (its
-    intercept is free: a constant phase is not a delay).
-    """
-    ratio = g_meas * np.conj(g_model)
-    w = np.abs(ratio)
-    if not np.any(w > 0):
-        return 0.0
-    phase = np.unwrap(np.angle(ratio))
-    omega = TWO_PI * f_hz
-    slope, _ = np.polyfit(omega, phase, 1, w=np.sqrt(w))
-    return float(-slope / 2.0)
 
 
 def _fit_once(model, f, g, length0, lo_len, hi_len, tau_bounds, tau0=0.0, start=None):

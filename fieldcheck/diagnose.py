@@ -21,6 +21,7 @@ from . import diagnose_signatures as sig
 from . import features
 from .constants import C0_M_PER_S, TWO_PI
 from .diagnose_signatures import Cause
+from .features import phase_slope_delay_s
 from .errors import FieldcheckError, FitError, InputError
 from .fit import NOISE_FLOOR, estimate_noise_sigma
 from .sweep import Sweep, impedance_from_gamma
@@ -145,24 +146,6 @@ def winding_turns(gamma: np.ndarray) -> float:
     """Net turns of Gamma about the Smith chart centre over the sweep (dimensionless)."""
     ph = np.unwrap(np.angle(np.asarray(gamma)))
     return float(abs(ph[-1] - ph[0]) / TWO_PI)
-
-
-def phase_slope_delay_s(f_hz: np.ndarray, gamma_meas: np.ndarray, gamma_model: np.ndarray) -> float:
-    """One-way delay (s) that best explains the phase of measured over model Gamma.
-
-    A line of one-way delay tau multiplies Gamma by exp(-2 j w tau) (Pozar,
-    Microwave Engineering, 4th ed., section 2.3), so the unwrapped phase of
-    Gamma_meas conj(Gamma_model) falls as -4 pi f tau; the slope is found by
-    least squares weighted by |Gamma_meas Gamma_model| (phase is noisy where
-    either is small).
-    """
-    prod = np.asarray(gamma_meas) * np.conj(np.asarray(gamma_model))
-    ph = np.unwrap(np.angle(prod))
-    w = np.abs(prod)
-    if not np.any(w > 0):
-        return 0.0
-    slope = np.polyfit(np.asarray(f_hz, float), ph, 1, w=np.sqrt(w))[0]
-    return float(-slope / (2.0 * TWO_PI))
 
 
 def ripple_peak(f_hz: np.ndarray, x: np.ndarray, noise_sigma: float, min_cycles: float):

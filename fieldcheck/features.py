@@ -9,6 +9,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .constants import TWO_PI
 from .sweep import Sweep, vswr_from_gamma
 
 
@@ -123,3 +124,21 @@ def best_match(sweep: Sweep) -> BestMatch:
     g = sweep.s11[i]
     return BestMatch(float(sweep.f_hz[i]), float(-20 * np.log10(max(abs(g), 1e-12))),
                      float(vswr_from_gamma(g)), i)
+
+
+def phase_slope_delay_s(f_hz: np.ndarray, gamma_meas: np.ndarray, gamma_model: np.ndarray) -> float:
+    """One-way delay (s) that best explains the phase of measured over model Gamma.
+
+    A line of one-way delay tau multiplies Gamma by exp(-2 j w tau) (Pozar,
+    Microwave Engineering, 4th ed., section 2.3), so the unwrapped phase of
+    Gamma_meas conj(Gamma_model) falls as -4 pi f tau; the slope is found by
+    least squares weighted by |Gamma_meas Gamma_model| (phase is noisy where
+    either is small).
+    """
+    prod = np.asarray(gamma_meas) * np.conj(np.asarray(gamma_model))
+    ph = np.unwrap(np.angle(prod))
+    w = np.abs(prod)
+    if not np.any(w > 0):
+        return 0.0
+    slope = np.polyfit(np.asarray(f_hz, float), ph, 1, w=np.sqrt(w))[0]
+    return float(-slope / (2.0 * TWO_PI))
