@@ -17,7 +17,7 @@ from scipy.optimize import brentq
 
 from . import features
 from .constants import C0_M_PER_S, TWO_PI
-from .errors import FieldcheckError, FitError
+from .errors import FieldcheckError, FitError, InputError
 from .fit import FitResult, ParamSpec, fit_reflection
 from .model import AntennaModel, model_from_description
 from .physics.surface import KL_MAX, KL_MIN, default_surface
@@ -191,7 +191,12 @@ def _start_length(model: AntennaModel, f_res_hz: float, built_m: float) -> float
     return float(length)
 
 
-def fit_antenna(sweep: Sweep, desc, *, model: AntennaModel | None = None) -> AntennaFit:
+#: Parameters a user may hold fixed, with the value used when none is given.
+FIXABLE = {"r_loss_ohm": 0.0, "c_feed_f": 0.0, "g_feed_s": 0.0, "delay_s": 0.0}
+
+
+def fit_antenna(sweep: Sweep, desc, *, model: AntennaModel | None = None,
+                fixed: dict | None = None) -> AntennaFit:
     """Fit the antenna model to ``sweep`` (already at the antenna/balun terminals).
 
     Parameters
@@ -203,6 +208,10 @@ def fit_antenna(sweep: Sweep, desc, *, model: AntennaModel | None = None) -> Ant
         What was built; its physical inputs stay fixed.
     model : AntennaModel, optional
         Override the model built from ``desc``.
+    fixed : dict, optional
+        Parameters to hold at a value instead of fitting, from :data:`FIXABLE`
+        (e.g. ``{"delay_s": 0.0}`` when the reference plane is known to be at
+        the terminals, which pins X = 0 there far better).
 
     Raises
     ------
@@ -210,6 +219,11 @@ def fit_antenna(sweep: Sweep, desc, *, model: AntennaModel | None = None) -> Ant
         No usable resonance near the as-built design, or the fit fails.
     """
     model = model or model_from_description(desc)
+    fixed = dict(fixed or {})
+    unknown = set(fixed) - set(FIXABLE)
+    if unknown:
+        raise InputError(f"cannot fix {', '.join(sorted(unknown))}: fixable parameters are "
+                         f"{', '.join(FIXABLE)}")
     built = desc.antenna.total_length_m if desc.antenna.form == "dipole" else desc.antenna.arm_length_m
     n_ends = 2 if desc.antenna.form == "dipole" else 1
     notes = []
@@ -244,12 +258,15 @@ def fit_antenna(sweep: Sweep, desc, *, model: AntennaModel | None = None) -> Ant
     tau_bounds = (tau0 - tau_span, tau0 + tau_span)
     if model.installation.kind == "horizontal":
         model = replace(model, mutual_ref_length_m=length0)
-    res = _fit_once(model, f, g, length0, lo_len, hi_len, tau_bounds, tau0)
+    if "delay_s" in fixed:
+        tau0 = fixed["delay_s"]
+        tau_bounds = (min(tau_bounds[0], tau0), max(tau_bounds[1], tau0))
+    res = _fit_once(model, f, g, length0, lo_len, hi_len, tau_bounds, tau0, fixed=fixed)
     if model.installation.kind == "horizontal":
         # Re-evaluate the ground-image mutual impedance at the fitted length.
         model = replace(model, mutual_ref_length_m=res.values["length_m"])
         res = _fit_once(model, f, g, res.values["length_m"], lo_len, hi_len, tau_bounds, tau0,
-                        start=res.values)
+                        start=res.values, fixed=fixed)
     if res.at_bounds:
         notes.append("parameters at a bound of the fit: " + ", ".join(res.at_bounds)
                      + " (their uncertainties are not meaningful)")
@@ -276,10 +293,14 @@ def _start_frequency(f, z_ant, g_line, f_design, notes):
         "re-sweep around the expected resonance, or run 'fieldcheck diagnose'")
 
 
-def _fit_once(model, f, g, length0, lo_len, hi_len, tau_bounds, tau0=0.0, start=None):
+def _fit_once(model, f, g, length0, lo_len, hi_len, tau_bounds, tau0=0.0, start=None, fixed=None):
     start = start or {}
+    fixed = fixed or {}
 
     def spec(name, unit, default, lo, hi):
+        if name in fixed:
+            v = float(fixed[name])
+            return ParamSpec(name, unit, v, min(lo, v), max(hi, v), fixed=True)
         return ParamSpec(name, unit, float(np.clip(start.get(name, default), lo, hi)), lo, hi)
 
     params = [
@@ -296,7 +317,7 @@ def _fit_once(model, f, g, length0, lo_len, hi_len, tau_bounds, tau0=0.0, start=
     # A residual delay rotates the trace; when the first start landed far from
     # the data, try starts on both sides of zero too.
     third = (tau_bounds[1] - tau_bounds[0]) / 6
-    for tau in (tau0 - third, tau0 + third):
+    for tau in (() if "delay_s" in fixed else (tau0 - third, tau0 + third)):
         trial = [p if p.name != "delay_s" else replace(p, initial=tau) for p in params]
         r = fit_reflection(f, g, fun, trial, noise_sigma=best.noise_sigma, systematics=CAL_RESIDUALS)
         if r.chi2 < best.chi2 * (1 - 1e-6):

@@ -137,3 +137,23 @@ def test_shift_budget_adds_up():
     assert_allclose(s.design_hz + s.length_part_hz + s.feed_part_hz, s.measured_hz, rtol=1e-12)
     # Electrically longer than built -> the length part lowers the resonance.
     assert s.length_part_hz < 0
+
+
+def test_fixing_the_delay_pins_the_terminal_resonance():
+    d = _desc()
+    f = np.linspace(120e6, 170e6, 401)
+    truth = dict(TRUTH, delay_s=0.0)
+    s = _sweep(d, truth, f, 0.002, 9)
+    free = fit_antenna(s, d)
+    held = fit_antenna(s, d, fixed={"delay_s": 0.0})
+    assert held.fit.values["delay_s"] == 0.0 and "delay_s" not in held.fit.names
+    assert held.f_res_hz.stderr < 0.5 * free.f_res_hz.stderr
+    assert abs(held.fit.values["length_m"] - truth["length_m"]) < 4 * held.fit.stderr["length_m"]
+
+
+def test_fixing_an_unknown_parameter_is_refused():
+    from fieldcheck.errors import InputError
+    d = _desc()
+    f = np.linspace(120e6, 170e6, 201)
+    with pytest.raises(InputError, match="fixable"):
+        fit_antenna(_sweep(d, TRUTH, f, 0.002, 1), d, fixed={"length_m": 1.0})

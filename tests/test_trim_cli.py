@@ -92,3 +92,17 @@ def test_missing_antenna_information_is_named(tmp_path, capsys):
     assert "--arm" in capsys.readouterr().err
     assert main(["trim", p, "--form", "dipole", "--arm", "500mm", "--target", "146MHz"]) == 2
     assert "--diameter" in capsys.readouterr().err
+
+
+def test_fix_option_parses_units_and_refuses_nonsense(tmp_path, capsys):
+    from fieldcheck.commands._common import parse_fix
+    assert parse_fix("delay,feed-c=0.5pF,loss=1.5ohm,feed-g") == {
+        "delay_s": 0.0, "c_feed_f": pytest.approx(0.5e-12), "r_loss_ohm": 1.5, "g_feed_s": 0.0}
+    assert parse_fix("delay=100ps") == {"delay_s": pytest.approx(1e-10)}
+    p = _write(tmp_path, "a", 1.03)
+    assert main(["trim", p, *OPTS, "--arm", "510mm", "--fix", "delay", "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["fit"]["fit"]["parameters"]["delay_s"]["value"] == 0.0
+    for bad in ("length", "feed-c=-1pF", "loss=2mm"):
+        assert main(["trim", p, *OPTS, "--arm", "510mm", "--fix", bad]) == 2
+        assert "--fix" in capsys.readouterr().err

@@ -112,3 +112,48 @@ __all__ = [
     "add_sweep_arguments", "load_sweep", "add_output_arguments", "emit_json",
     "parse_frequency_hz", "parse_length_m", "InputError",
 ]
+
+
+#: --fix names -> fit parameter names (fieldcheck.antenna_fit.FIXABLE).
+FIX_NAMES = {"delay": "delay_s", "feed-c": "c_feed_f", "feed-g": "g_feed_s", "loss": "r_loss_ohm"}
+
+
+def add_fix_argument(p: argparse.ArgumentParser) -> None:
+    p.add_argument("--fix", default=None, metavar="NAME[=VALUE],...",
+                   help="hold fit parameters instead of fitting them: delay (residual delay, e.g. "
+                        "delay or delay=0.1ns: use when the reference plane is known to be at the "
+                        "terminals), feed-c (e.g. feed-c=0.5pF), feed-g (no shunt loss), loss "
+                        "(e.g. loss=0.5ohm); without a value, zero")
+
+
+def parse_fix(text: str | None) -> dict:
+    """Parse ``--fix delay,feed-c=0.5pF`` into fit-parameter values (SI units)."""
+    import re
+
+    from ..refplane import parse_delay
+
+    out = {}
+    if not text:
+        return out
+    for item in (t.strip() for t in text.split(",") if t.strip()):
+        name, _, value = item.partition("=")
+        name = name.strip().lower()
+        if name not in FIX_NAMES:
+            raise InputError(f"--fix: unknown parameter {name!r}; use {', '.join(FIX_NAMES)}")
+        key = FIX_NAMES[name]
+        value = value.strip()
+        if not value:
+            out[key] = 0.0
+        elif name == "delay":
+            out[key] = parse_delay(value) if value not in ("0", "0s") else 0.0
+        else:
+            unit = {"feed-c": "pf", "loss": "ohm", "feed-g": "s"}[name]
+            m = re.fullmatch(r"([+-]?\d+\.?\d*(?:[eE][+-]?\d+)?)\s*([a-zA-Z]*)", value)
+            if not m or m.group(2).lower() not in ("", unit):
+                raise InputError(f"--fix {name}={value}: write a number in {unit}, e.g. "
+                                 f"{ {'feed-c': 'feed-c=0.5pF', 'loss': 'loss=0.5ohm', 'feed-g': 'feed-g=0'}[name] }")
+            v = float(m.group(1))
+            if v < 0:
+                raise InputError(f"--fix {name}={value}: must not be negative")
+            out[key] = v * 1e-12 if name == "feed-c" else v
+    return out

@@ -50,6 +50,7 @@ def add_arguments(p):
     t.add_argument("--length-sigma", default=None, metavar="LENGTH",
                    help="trim history: uncertainty of each arm-length measurement "
                         f"(default {DEFAULT_LENGTH_SIGMA_M * 1e3:g}mm)")
+    _common.add_fix_argument(t)
     _common.add_output_arguments(p)
 
 
@@ -57,10 +58,11 @@ def run(args) -> int:
     if not 0 < args.tolerance <= 10:
         raise InputError(f"--tolerance must be a percentage between 0 and 10, got {args.tolerance:g}")
     desc = description_from_args(args, require_target=True)
+    args.fixed = _common.parse_fix(args.fix)
     if len(args.sweeps) > 1 or args.arm_lengths:
         return _run_history(args, desc)
     sweep = _common.load_sweep(args, args.sweeps[0], desc.feed)
-    af = fit_antenna(sweep, desc)
+    af = fit_antenna(sweep, desc, fixed=args.fixed)
     advice = advise_trim(af, desc.target.frequency_hz, criterion=desc.target.criterion,
                          tolerance_pct=args.tolerance, vswr_limit=desc.target.vswr_limit)
     _emit(args, sweep.source, desc, af, advice, None)
@@ -74,7 +76,7 @@ def _run_history(args, desc) -> int:
     for path, arm in zip(args.sweeps, arms):
         d = _with_arm(desc, arm)
         sweep = _common.load_sweep(args, path, d.feed)
-        fits.append((sweep, d, fit_antenna(sweep, d)))
+        fits.append((sweep, d, fit_antenna(sweep, d, fixed=args.fixed)))
     n_ends = fits[-1][2].n_ends
     hist = fit_history([f.built_length_m for _, _, f in fits], [f.length_m.value for _, _, f in fits],
                        [f.length_m.stderr for _, _, f in fits], n_ends, sigma)
