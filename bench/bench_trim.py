@@ -38,7 +38,8 @@ from fieldcheck.constants import C0_M_PER_S
 from fieldcheck.errors import FieldcheckError
 from fieldcheck.importer import read_sweep
 from fieldcheck.refplane import apply_from_options
-from fieldcheck.simulate import simulate_sweep, write_touchstone
+from fieldcheck.simulate import simulate_sweep
+from fieldcheck.touchstone import write_touchstone
 from fieldcheck.trim import advise_trim
 
 

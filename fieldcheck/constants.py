@@ -20,3 +20,7 @@ ETA0_OHM = 376.730313668
 
 #: Natural logarithm of 10 over 20 and friends are derived, not constants.
 TWO_PI = 2.0 * math.pi
+
+#: Decibels per neper: 20 log10(e) = 20 / ln(10) = 8.685889638... dB/Np (definition
+#: of the neper and the decibel, ISO 80000-3).
+DB_PER_NEPER = 20.0 / math.log(10.0)

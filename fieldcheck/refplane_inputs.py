@@ -15,12 +15,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from .cables import lookup, parse_cable_loss, scaled_loss_db_per_100m
-from .constants import C0_M_PER_S
+from .constants import C0_M_PER_S, DB_PER_NEPER
 from .errors import InputError
 from .units import parse_length_m
-
-#: dB per neper: 20 log10(e) = 8.685889... (definition of the neper, ISO 80000-3).
-DB_PER_NEPER = 20.0 / math.log(10.0)
 
 
 @dataclass(frozen=True)

@@ -46,6 +46,7 @@ from .physics.materials import get_material
 from .physics.mom import L_OVER_A_MIN, solve_dipole
 from .refplane import add_cable, add_delay, parse_cable, parse_delay
 from .sweep import Sweep, gamma_from_impedance
+from .touchstone import write_touchstone  # re-exported for old callers; the writer lives there
 
 __all__ = ["BenchEffects", "Fault", "FAULTS", "LABEL", "SimulatedSweep", "insulation_length_factor",
            "simulate_antenna_z", "simulate_sweep", "write_touchstone"]
@@ -435,63 +436,3 @@ def simulate_sweep(desc: Description, f_hz, effects: BenchEffects | None = None,
     sweep = Sweep(f, g, z0, source=f"simulated: {LABEL} {title} ({name or 'no fault'})",
                   comments=comments)
     return SimulatedSweep(sweep, truth, z_t, g_b)
-
-
-# ---- writing ---------------------------------------------------------------------
-
-_UNIT_SCALE = {"hz": ("Hz", 1.0), "khz": ("kHz", 1e3), "mhz": ("MHz", 1e6), "ghz": ("GHz", 1e9)}
-_FORMATS = ("RI", "MA", "DB")
-
-
-def write_touchstone(sweep: Sweep, path, *, fmt: str = "RI", unit: str = "MHz",
-                     comments=()) -> None:
-    """Write a one-port sweep as a plain Touchstone v1 file (``.s1p``).
-
-    Layout per the Touchstone File Format Specification (IBIS Open Forum, 2.0,
-    version 1 syntax): ``!`` comment lines (the sweep's comments, then
-    ``comments``), one option line ``# <unit> S <fmt> R <z0>``, then one line
-    per frequency with two numbers (RI: real, imaginary; MA: magnitude, angle in
-    degrees; DB: 20 log10 magnitude, angle in degrees), 12 significant digits.
-
-    Parameters
-    ----------
-    sweep : Sweep
-        Data to write.
-    path : str or os.PathLike
-        Output file (overwritten).
-    fmt : {'RI', 'MA', 'DB'}
-        Number format.
-    unit : {'Hz', 'kHz', 'MHz', 'GHz'}
-        Frequency unit (case-insensitive).
-    comments : iterable of str
-        Extra comment lines.
-
-    Raises
-    ------
-    InputError
-        Unknown format or unit, a zero S11 in DB format, or a file that cannot be written.
-    """
-    fmt_u = str(fmt).upper()
-    if fmt_u not in _FORMATS:
-        raise InputError(f"unknown Touchstone format {fmt!r}: use RI, MA or DB")
-    if str(unit).lower() not in _UNIT_SCALE:
-        raise InputError(f"unknown frequency unit {unit!r}: use Hz, kHz, MHz or GHz")
-    label, scale = _UNIT_SCALE[str(unit).lower()]
-    s = sweep.s11
-    if fmt_u == "RI":
-        a, b = s.real, s.imag
-    else:
-        mag = np.abs(s)
-        if fmt_u == "DB" and np.any(mag == 0):
-            raise InputError("an S11 of exactly 0 has no dB value: write RI or MA instead", str(path))
-        a = mag if fmt_u == "MA" else 20.0 * np.log10(mag)
-        b = np.degrees(np.angle(s))
-    lines = [f"! {' '.join(str(c).splitlines())}" for c in (*sweep.comments, *comments)]
-    lines.append(f"# {label} S {fmt_u} R {sweep.z0_ohm:.12g}")
-    lines += [f"{fx:.12g} {x:.12g} {y:.12g}" for fx, x, y in zip(sweep.f_hz / scale, a, b)]
-    try:
-        with open(path, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write("\n".join(lines) + "\n")
-    except OSError as exc:
-        raise InputError(f"cannot write the sweep ({exc.strerror}): check the directory and "
-                         "permissions", str(path)) from None

@@ -47,9 +47,6 @@ HARMONIC_GRID_TOL = 0.05
 #: noise/side-lobe floor) to be reported (common practice, no source).
 NOISE_MARGIN_DB = 10.0
 
-#: dB per neper = 20 / ln(10) (definition of the neper and the decibel).
-DB_PER_NEPER = 20.0 / math.log(10.0)
-
 
 @dataclass(frozen=True)
 class Reflection:

@@ -1,4 +1,4 @@
-"""Strict reading of Touchstone files (versions 1.0, 1.1, 2.0 and 2.1).
+"""Strict reading of Touchstone files (versions 1.0, 1.1, 2.0 and 2.1) and plain v1 writing.
 
 With :mod:`fieldcheck.touchstone_check`, the only module that knows the
 Touchstone format.  Every line is checked there against the Touchstone File
@@ -178,3 +178,63 @@ def _skrf_read(scan: Scanner, values: np.ndarray):
         net.read_touchstone(fid)
     net.name = os.path.splitext(os.path.basename(scan.path))[0]
     return net
+
+
+# ---- writing ---------------------------------------------------------------------
+
+_UNIT_LABEL = {"hz": "Hz", "khz": "kHz", "mhz": "MHz", "ghz": "GHz"}
+_WRITE_FORMATS = ("RI", "MA", "DB")
+
+
+def write_touchstone(sweep: Sweep, path, *, fmt: str = "RI", unit: str = "MHz",
+                     comments=()) -> None:
+    """Write a one-port sweep as a plain Touchstone v1 file (``.s1p``).
+
+    Layout per the Touchstone File Format Specification (IBIS Open Forum, 2.0,
+    version 1 syntax): ``!`` comment lines (the sweep's comments, then
+    ``comments``), one option line ``# <unit> S <fmt> R <z0>``, then one line
+    per frequency with two numbers (RI: real, imaginary; MA: magnitude, angle in
+    degrees; DB: 20 log10 magnitude, angle in degrees), 12 significant digits.
+
+    Parameters
+    ----------
+    sweep : Sweep
+        Data to write.
+    path : str or os.PathLike
+        Output file (overwritten).
+    fmt : {'RI', 'MA', 'DB'}
+        Number format.
+    unit : {'Hz', 'kHz', 'MHz', 'GHz'}
+        Frequency unit (case-insensitive).
+    comments : iterable of str
+        Extra comment lines.
+
+    Raises
+    ------
+    InputError
+        Unknown format or unit, a zero S11 in DB format, or a file that cannot be written.
+    """
+    fmt_u = str(fmt).upper()
+    if fmt_u not in _WRITE_FORMATS:
+        raise InputError(f"unknown Touchstone format {fmt!r}: use RI, MA or DB")
+    if str(unit).lower() not in _UNIT_LABEL:
+        raise InputError(f"unknown frequency unit {unit!r}: use Hz, kHz, MHz or GHz")
+    label, scale = _UNIT_LABEL[str(unit).lower()], UNIT_SCALE[str(unit).lower()]
+    s = sweep.s11
+    if fmt_u == "RI":
+        a, b = s.real, s.imag
+    else:
+        mag = np.abs(s)
+        if fmt_u == "DB" and np.any(mag == 0):
+            raise InputError("an S11 of exactly 0 has no dB value: write RI or MA instead", str(path))
+        a = mag if fmt_u == "MA" else 20.0 * np.log10(mag)
+        b = np.degrees(np.angle(s))
+    lines = [f"! {' '.join(str(c).splitlines())}" for c in (*sweep.comments, *comments)]
+    lines.append(f"# {label} S {fmt_u} R {sweep.z0_ohm:.12g}")
+    lines += [f"{fx:.12g} {x:.12g} {y:.12g}" for fx, x, y in zip(sweep.f_hz / scale, a, b)]
+    try:
+        with open(path, "w", encoding="utf-8", newline="\n") as fh:
+            fh.write("\n".join(lines) + "\n")
+    except OSError as exc:
+        raise InputError(f"cannot write the sweep ({exc.strerror}): check the directory and "
+                         "permissions", str(path)) from None

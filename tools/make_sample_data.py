@@ -13,7 +13,8 @@ import numpy as np
 
 from fieldcheck.antenna import load_description
 from fieldcheck.bench_effects import BenchEffects, Fault
-from fieldcheck.simulate import simulate_sweep, write_touchstone
+from fieldcheck.simulate import simulate_sweep
+from fieldcheck.touchstone import write_touchstone
 
 ROOT = Path(__file__).resolve().parents[1] / "sample_data"
 NOTE = ("SIMULATED demo sweep written by tools/make_sample_data.py "

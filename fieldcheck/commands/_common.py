@@ -96,6 +96,15 @@ def emit_json(data) -> None:
     sys.stdout.write("\n")
 
 
+def emit_report(args: argparse.Namespace, data: dict, render_text) -> int:
+    """Print ``data`` as JSON (with ``--json``) or as ``render_text(data)``; return exit code 0."""
+    if args.json:
+        emit_json(data)
+    else:
+        print(render_text(data))
+    return 0
+
+
 def _json_default(obj):
     import numpy as np
 
@@ -109,7 +118,7 @@ def _json_default(obj):
 
 
 __all__ = [
-    "add_sweep_arguments", "load_sweep", "add_output_arguments", "emit_json",
+    "add_sweep_arguments", "load_sweep", "add_output_arguments", "emit_json", "emit_report",
     "parse_frequency_hz", "parse_length_m", "InputError",
 ]
 

@@ -74,11 +74,7 @@ def run(args) -> int:
     result = diagnose(sweep, desc, raw_sweep=raw, cable_vf=args.cable_vf, cable=cable)
     data = {"source": raw.source, "antenna": desc.to_dict() if desc is not None else None,
             **result.to_dict(), "sweep_notes": list(sweep.notes)}
-    if args.json:
-        _common.emit_json(data)
-    else:
-        print(render_text(data))
-    return 0
+    return _common.emit_report(args, data, render_text)
 
 
 def render_text(d: dict) -> str:

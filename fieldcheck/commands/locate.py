@@ -85,11 +85,7 @@ def run(args) -> int:
     )
     data = {"source": sweep.source, "cable_type": label, "loss_db_per_100m": loss,
             "loss_ref_hz": ref_hz, **res.to_dict(), "sweep_notes": list(sweep.notes)}
-    if args.json:
-        _common.emit_json(data)
-    else:
-        print(render_text(data))
-    return 0
+    return _common.emit_report(args, data, render_text)
 
 
 def render_text(d: dict) -> str:

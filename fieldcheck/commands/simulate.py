@@ -8,6 +8,7 @@ import numpy as np
 
 from .. import bench_effects, simulate
 from ..errors import InputError
+from ..touchstone import write_touchstone
 from ..units import format_frequency, parse_frequency_hz, parse_length_m
 from . import _antenna_args, _common
 
@@ -136,8 +137,8 @@ def run(args) -> int:
         raise InputError("--fault-distance and --fault-size only apply with --fault NAME")
     # seed + 1 for the noise: the bench draw and the noise are independent streams
     sim = simulate.simulate_sweep(desc, f_hz, effects, rng=args.seed + 1, fault=fault)
-    simulate.write_touchstone(sim.sweep, args.out, fmt=args.ts_format,
-                              comments=(f"{simulate.LABEL} effects: {args.effects}, seed {args.seed}",))
+    write_touchstone(sim.sweep, args.out, fmt=args.ts_format,
+                     comments=(f"{simulate.LABEL} effects: {args.effects}, seed {args.seed}",))
     if args.json:
         _common.emit_json({"label": simulate.LABEL, "out": args.out,
                            "effects": effects.to_dict(), "truth": sim.truth})

@@ -44,11 +44,7 @@ def run(args) -> int:
     res = wheeler_efficiency(free, cap, resonance=args.resonance, r_sigma_ohm=args.r_sigma)
     data = {"free_source": free.source, "cap_source": cap.source, **res.to_dict(),
             "sweep_notes": list(free.notes) + list(cap.notes)}
-    if args.json:
-        _common.emit_json(data)
-    else:
-        print(render_text(data))
-    return 0
+    return _common.emit_report(args, data, render_text)
 
 
 def render_text(d: dict) -> str:
