@@ -15,6 +15,7 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
+from fieldcheck.cli import main
 from fieldcheck.errors import InputError
 from fieldcheck.sweep import Sweep, gamma_from_impedance
 from fieldcheck.wheeler import wheeler_efficiency
@@ -186,3 +187,43 @@ def test_cli_wheeler_bad_input_exits_2(tmp_path, capsys):
     assert main(["wheeler", str(free), str(tmp_path / "missing.s1p")]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and err[0].startswith("fieldcheck: error:")
+
+
+def test_cli_wheeler_sets_measurement_beside_conductor_loss_physics(tmp_path, capsys):
+    """Cap and free sweeps built from the MoM antenna plus the skin-effect loss of its own wire.
+
+    With no loss beyond the wire's, the Wheeler efficiency must agree with the physics
+    estimate (same R_rad, same R_loss); 20 ohm of extra series loss must show as a gap.
+    Definition eta = R_rad / (R_rad + R_loss): IEEE Std 145-2013.
+    """
+    import skrf
+    from fieldcheck.antenna import description_from_options
+    from fieldcheck.physics.loss import installed_conductor_loss_ohm
+    from fieldcheck.physics.materials import get_material
+    from fieldcheck.physics.mom import dipole_impedance
+
+    desc = description_from_options(form="dipole", arm="1.0m", diameter="0.4mm", material="steel",
+                                   require_target=False)
+    f = np.linspace(55e6, 85e6, 301)
+    z_w = dipole_impedance(f, desc.antenna.total_length_m, desc.antenna.radius_m)
+    r_c = installed_conductor_loss_ohm(f, desc.antenna.total_length_m, desc.antenna.radius_m,
+                                       desc.installation, get_material("steel"))
+    results = []
+    for extra in (0.0, 20.0):
+        z_free = z_w + r_c + extra
+        z_cap = r_c + extra + 1j * z_w.imag  # radiation suppressed, reactance kept
+        paths = []
+        for name, z in (("free", z_free), ("cap", z_cap)):
+            g = (z - 50) / (z + 50)
+            net = skrf.Network(frequency=skrf.Frequency.from_f(f, unit="hz"), s=g.reshape(-1, 1, 1), z0=50)
+            net.write_touchstone(str(tmp_path / f"{name}{extra:g}"), form="ri")
+            paths.append(str(tmp_path / f"{name}{extra:g}.s1p"))
+        assert main(["wheeler", *paths, "--r-sigma", "0.05", "--form", "dipole", "--arm", "1.0m",
+                     "--diameter", "0.4mm", "--material", "steel", "--json"]) == 0
+        results.append(json.loads(capsys.readouterr().out))
+    clean, lossy = results
+    assert abs(clean["physics"]["eta"] - clean["eta"]) < 0.005
+    assert clean["physics"]["eta"] - lossy["eta"] > 0.03
+    assert main(["wheeler", *paths, "--r-sigma", "0.05", "--form", "dipole", "--arm", "1.0m",
+                 "--diameter", "0.4mm", "--material", "steel"]) == 0
+    assert "loss the wire cannot explain" in capsys.readouterr().out

@@ -95,15 +95,6 @@ def _wire_length(length_m: float, where: inst.Installation) -> float:
     return 2.0 * length_m if where.kind == "monopole" else length_m
 
 
-def _loss_ohm(f_hz, length_m, radius_m, where, material) -> np.ndarray:
-    """Conductor loss referred to the feed, from the free-space MoM current."""
-    sol = mom.solve_dipole(f_hz, _wire_length(length_m, where), radius_m)
-    r = loss.loss_resistance_from_current(sol.z_m, sol.current_a, 1.0 / sol.z_in_ohm,
-                                          sol.segment_m, sol.f_hz, radius_m, material)
-    # A monopole is the upper half of its image dipole: half the wire, half the loss.
-    return 0.5 * r if where.kind == "monopole" else r
-
-
 def _resonance_hz(length_m, radius_m, where) -> float | None:
     """First series resonance (X rising through 0) of the lossless antenna, Hz."""
     wire = _wire_length(length_m, where)
@@ -156,7 +147,7 @@ def predict(length_m, radius_m, material, where, f_hz, f_table_hz, z0_ohm) -> di
         f_table_hz = np.linspace(0.9 * f_hz, 1.1 * f_hz, DEFAULT_TABLE_POINTS)
     f_all = np.concatenate(([f_hz], f_table_hz))
     z_rad = inst.installed_impedance(f_all, length_m, radius_m, where)
-    r_loss = _loss_ohm(f_all, length_m, radius_m, where, material)
+    r_loss = loss.installed_conductor_loss_ohm(f_all, length_m, radius_m, where, material)
     z = z_rad + r_loss
     gam = gamma_from_impedance(z, z0_ohm)
     eff = loss.radiation_efficiency(z_rad.real[0], r_loss[0])

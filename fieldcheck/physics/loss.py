@@ -287,3 +287,34 @@ def realized_gain_dbi(efficiency, directivity, gamma):
 def efficiency_db(efficiency):
     """Radiation efficiency in dB (<= 0)."""
     return to_dbi(efficiency)
+
+
+def installed_conductor_loss_ohm(f_hz, length_m: float, radius_m: float, installation,
+                                 material: Material) -> np.ndarray:
+    """Conductor loss of an installed antenna referred to its feed, ohm, from the MoM current.
+
+    Parameters
+    ----------
+    f_hz : float or array of float
+        Frequencies, Hz.
+    length_m : float
+        Dipole total length, or monopole height above its ground plane, m.
+    radius_m : float
+        Wire radius, m.
+    installation : fieldcheck.physics.installation.Installation
+    material : Material
+
+    Notes
+    -----
+    The current is the free-space dipole's (for a monopole, its image dipole of
+    twice the height, of which the real wire is the upper half: half the loss).
+    Over ground the current shape changes little with height, so the
+    free-space current is used for a horizontal dipole too.
+    """
+    from .mom import solve_dipole
+
+    monopole = installation.kind == "monopole"
+    sol = solve_dipole(f_hz, 2.0 * length_m if monopole else length_m, radius_m)
+    r = loss_resistance_from_current(sol.z_m, sol.current_a, 1.0 / sol.z_in_ohm,
+                                     sol.segment_m, sol.f_hz, radius_m, material)
+    return 0.5 * r if monopole else r
