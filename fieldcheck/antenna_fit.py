@@ -18,7 +18,7 @@ from scipy.optimize import brentq
 from . import features
 from .constants import C0_M_PER_S, TWO_PI
 from .errors import FieldcheckError, FitError, InputError
-from .fit import FitResult, ParamSpec, fit_reflection
+from .fit import FitResult, ParamSpec, fit_reflection, systematic_covariance
 from .model import AntennaModel, model_from_description
 from .physics.surface import KL_MAX, KL_MIN, default_surface
 from .sweep import Sweep, gamma_from_impedance
@@ -34,16 +34,38 @@ LENGTH_FREEDOM = 1.35
 #: be tens of ohms; feed hardware rarely tens of pF).
 R_LOSS_MAX_OHM = 300.0
 C_FEED_MAX_F = 50e-12
-#: Calibration residuals assumed for every sweep (effective directivity 40 dB,
-#: source match 35 dB, reflection tracking 0.1 dB: what a careful
-#: short-open-load calibration with a decent kit leaves behind; common practice,
-#: no source).  They enter the covariance as systematic terms (see fit.py):
-#: errors the fit absorbs without a trace in its residuals.
+#: Calibration residuals assumed for every sweep: typical of a careful
+#: short-open-load calibration with a decent kit (effective directivity 40 to
+#: 46 dB, source match 34 to 40 dB, tracking within 0.1 dB; the middle of each
+#: range is used as a standard uncertainty; common practice, no source).  They
+#: enter the covariance as systematic terms (see fit.py): errors the fit
+#: absorbs without a trace in its residuals.
 CAL_RESIDUALS = (
-    (10 ** (-40 / 20), lambda g: np.ones_like(g)),        # directivity e00
-    (10 ** (-35 / 20), lambda g: g * g),                  # source match e11 * G^2
+    (10 ** (-42 / 20), lambda g: np.ones_like(g)),        # directivity e00
+    (10 ** (-37 / 20), lambda g: g * g),                  # source match e11 * G^2
     (10 ** (0.1 / 20) - 1, lambda g: g),                  # tracking (e10 e01 - 1) * G
 )
+#: Unremoved feed hardware (connector, balun leads, the balun's own line): a
+#: few centimetres of line whose impedance is not the system's.  Modelled as a
+#: line of FEED_HARDWARE_M (air-equivalent, one way) with a reflection
+#: FEED_HARDWARE_RHO at its ends (Z0 about 50 +- 10 ohm); to first order in
+#: beta*l it adds rho (1 - G^2) (2 j beta l) to the reflection (from the
+#: terminated-line formula, Pozar, Microwave Engineering, 4th ed., eq. 2.44,
+#: expanded for a short line).  Values are common practice, no source.  The
+#: delay parameter absorbs the matched part; this term covers the mismatch.
+#: It blurs where the antenna's own terminals are, so it enters the
+#: uncertainty of terminal quantities (X = 0, electrical length, efficiency)
+#: but not of the match the feed line sees, which includes the hardware.
+FEED_HARDWARE_M = 0.03
+FEED_HARDWARE_RHO = 0.1
+
+
+def _hardware_systematic(f_hz):
+    """The feed-hardware term for :func:`fieldcheck.fit.systematic_covariance` at ``f_hz``."""
+    two_beta_l = 2.0 * TWO_PI * np.asarray(f_hz) * FEED_HARDWARE_M / C0_M_PER_S
+    return ((FEED_HARDWARE_RHO, lambda g: (1.0 - g * g) * two_beta_l),)
+
+
 #: Shunt conductance bound: 0.1 S is a 10-ohm shunt, far beyond any working feed.
 G_FEED_MAX_S = 0.1
 
@@ -83,6 +105,9 @@ class AntennaFit:
         Terminal resistance and its radiation part at ``f_res_hz`` (or at the best match).
     efficiency : Derived
         Radiation efficiency R_rad / (R_rad + R_loss) there (IEEE Std 145-2013 definition).
+    terminal_covariance : ndarray
+        The fit's covariance plus the feed-hardware systematic term: the
+        uncertainty of quantities that refer to the antenna's own terminals.
     feed_shunt_loss : float
         Fraction of the delivered power lost in the shunt conductance across the feed.
     length_error_m : Derived
@@ -104,6 +129,7 @@ class AntennaFit:
     r_rad_ohm: float
     efficiency: Derived
     feed_shunt_loss: float
+    terminal_covariance: np.ndarray
     length_error_m: Derived
     measured_crossing_hz: float | None
     resonance_in_sweep: bool
@@ -112,7 +138,8 @@ class AntennaFit:
 
     @property
     def length_m(self) -> Derived:
-        return Derived(self.fit.values["length_m"], self.fit.stderr["length_m"], "m")
+        i = self.fit.names.index("length_m")
+        return Derived(self.fit.values["length_m"], float(np.sqrt(self.terminal_covariance[i, i])), "m")
 
     @property
     def end_correction_per_end_m(self) -> Derived:
@@ -358,7 +385,9 @@ def _efficiencies(model, f_hz, p):
 
 
 def _derive(res: FitResult, model, built, n_ends, f_all, crossing, notes) -> AntennaFit:
-    v, cov, names = res.values, res.covariance, res.names
+    v, names = res.values, res.names
+    cov = res.covariance + systematic_covariance(res, _hardware_systematic(res.f_hz))
+    i_len = names.index("length_m")
     L = v["length_m"]
     f_guess = crossing or C0_M_PER_S / (2 * L * _len_factor(model))
     try:
@@ -391,7 +420,8 @@ def _derive(res: FitResult, model, built, n_ends, f_all, crossing, notes) -> Ant
         r_at_res_ohm=float(z_ref.real), r_rad_ohm=r_rad,
         efficiency=Derived(float(eff), sig_e, "1"),
         feed_shunt_loss=float(shunt),
-        length_error_m=Derived(float(L - built), res.stderr["length_m"], "m"),
+        length_error_m=Derived(float(L - built), float(np.sqrt(cov[i_len, i_len])), "m"),
+        terminal_covariance=cov,
         measured_crossing_hz=crossing,
         resonance_in_sweep=bool(in_sweep),
         sweep_span_hz=(float(f_all[0]), float(f_all[-1])),

@@ -108,6 +108,13 @@ class FitResult:
         Frequencies used in the fit.
     residual : ndarray (complex)
         Gamma_model - Gamma_measured at ``f_hz``.
+    gamma_model : ndarray (complex)
+        The fitted model at ``f_hz``.
+    shift_map : ndarray, shape (n_free, 2 n)
+        Linear map from a perturbation of the data (real parts then imaginary
+        parts, in Gamma) to the parameter shift it causes: the negative
+        pseudo-inverse of the Jacobian, in parameter units.  Used by
+        :func:`systematic_covariance`.
     """
 
     names: tuple
@@ -129,6 +136,8 @@ class FitResult:
     message: str
     f_hz: np.ndarray = field(repr=False)
     residual: np.ndarray = field(repr=False)
+    gamma_model: np.ndarray = field(repr=False, default=None)
+    shift_map: np.ndarray = field(repr=False, default=None)
 
     def to_dict(self) -> dict:
         return {
@@ -234,15 +243,10 @@ def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None, systema
         j_pinv = np.linalg.pinv(J)
     except np.linalg.LinAlgError as exc:  # pragma: no cover - pinv rarely fails
         raise FitError(f"covariance could not be computed: {exc}") from exc
-    cov_x = (j_pinv @ j_pinv.T) * scale_cov
+    cov = (j_pinv @ j_pinv.T) * scale_cov * np.outer(scale, scale)
     g_fit = g + d
-    for magnitude, shape in systematics:
-        b = np.asarray(shape(g_fit), dtype=complex) * np.ones_like(g_fit)
-        for unit in (1.0, 1j):
-            dr = np.concatenate([(unit * b).real, (unit * b).imag]) / sigma
-            dx = j_pinv @ dr
-            cov_x = cov_x + 0.5 * magnitude**2 * np.outer(dx, dx)
-    cov = cov_x * np.outer(scale, scale)
+    shift_map = -(j_pinv * scale[:, None]) / sigma
+    cov = cov + _systematic_cov(shift_map, g_fit, systematics)
     err = np.sqrt(np.clip(np.diag(cov), 0, None))
     stderr = {p.name: 0.0 for p in params if p.fixed}
     stderr.update({p.name: float(e) for p, e in zip(free, err)})
@@ -272,7 +276,33 @@ def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None, systema
         message=str(sol.message),
         f_hz=f,
         residual=d,
+        gamma_model=g_fit,
+        shift_map=shift_map,
     )
+
+
+def systematic_covariance(result: FitResult, systematics) -> np.ndarray:
+    """Covariance of the parameter shifts that ``systematics`` would cause in ``result``.
+
+    Parameters
+    ----------
+    result : FitResult
+    systematics : sequence of (magnitude, callable)
+        As for :func:`fit_reflection`.
+    """
+    return _systematic_cov(result.shift_map, result.gamma_model, systematics)
+
+
+def _systematic_cov(shift_map, g_fit, systematics) -> np.ndarray:
+    """Sum over terms of m^2/2 (a a^T + c c^T); see the module docstring."""
+    n = shift_map.shape[0]
+    cov = np.zeros((n, n))
+    for magnitude, shape in systematics:
+        b = np.asarray(shape(g_fit), dtype=complex) * np.ones_like(g_fit)
+        for unit in (1.0, 1j):
+            dp = shift_map @ np.concatenate([(unit * b).real, (unit * b).imag])
+            cov += 0.5 * magnitude**2 * np.outer(dp, dp)
+    return cov
 
 
 def _param_scale(p: ParamSpec) -> float:

@@ -13,15 +13,19 @@ Decision rules (all thresholds named below):
      velocity factor, e.g. insulation).  We cut by the *smaller* of the two
      and count half their difference as a model uncertainty.
 
-2. Never over-cut: the recommended cut is the nominal cut minus two standard
-   uncertainties, rounded *down* to a sensible resolution.  When that margin
-   would leave the result outside the tolerance, the advice is a conservative
-   FIRST cut followed by a re-measure.
-3. Too short: say how much to ADD per arm (the best estimate, rounded to the
-   resolution: a surplus can be trimmed and a shortfall topped up, so neither
-   side needs a margin), never a negative cut.  Within the tolerance already,
-   a short antenna is left alone; a long one still gets a cut that the margin
-   allows, to centre it.
+2. Never over-cut.  An over-cut leaves the antenna so short that its
+   criterion frequency ends above the target by more than the tolerance;
+   metal cannot be put back.  The recommended cut is the nominal cut less a
+   margin, rounded *down* to a sensible resolution, where the margin is
+   whatever it takes for the cut's upper two-standard-uncertainty bound to
+   stay inside the tolerance: ``max(0, 2 sigma - tolerance)``.  When that
+   margin plus the 90 % spread of the result would leave it outside the
+   tolerance on the long side, the advice is a labelled FIRST cut followed by
+   a re-measure; when not even a margin-free cut is possible, WAIT.
+3. Too short: say how much to ADD per arm (the best estimate plus the same
+   margin, rounded up, so that at two standard uncertainties it does not end
+   short), never a negative cut.  Within the tolerance already, a short
+   antenna is left alone; a long one still gets a cut, to centre it.
 """
 
 from __future__ import annotations
@@ -38,11 +42,12 @@ from .sweep import return_loss_db, vswr_from_gamma
 
 #: Landing tolerance on the criterion frequency, percent of target.
 DEFAULT_TOLERANCE_PCT = 0.3
-#: Cut margin in standard uncertainties ("never over-cut" at about 97.7 % one-sided).
+#: The cut's upper bound, in standard uncertainties, that must not over-cut
+#: (about 97.7 % one-sided for a Gaussian).
 SAFETY_SIGMAS = 2.0
-#: A landing within the tolerance needs the margin plus the 90 % one-sided
-#: spread (1.28 sigma) to fit inside it; otherwise advise a first cut.
-LANDING_SIGMAS = SAFETY_SIGMAS + 1.28
+#: One-sided 90 % point of a Gaussian: the margin plus this many sigma must fit
+#: inside the tolerance for a one-step landing; otherwise advise a first cut.
+LANDING_SPREAD_SIGMAS = 1.28
 #: Adding more than this fraction of the arm suggests loading instead.
 LOADING_SUGGEST_FRACTION = 0.10
 
@@ -173,7 +178,10 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
             "no trim advice: " + af.fit.adequacy_reason
             + "; run 'fieldcheck diagnose' on this sweep to find out what is wrong")
     notes = list(af.notes)
-    v, names, cov = af.fit.values, af.fit.names, af.fit.covariance
+    # The match the feed line sees includes the feed hardware; X = 0 at the
+    # terminals does not, so it carries the hardware term too.
+    cov = af.terminal_covariance if criterion == "resonance" else af.fit.covariance
+    v, names = af.fit.values, af.fit.names
     L_now = v["length_m"]
     f_now = criterion_hz(af, L_now, criterion, _reference_hz(af))
     L_goal = solve_length_for(af, target_hz, criterion)
@@ -201,18 +209,21 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
     tol_len = tolerance_pct / 100 * L_goal / s / n  # per-arm length equivalent of the tolerance
 
     within = abs(f_now - target_hz) <= tolerance_pct / 100 * target_hz
+    margin = max(0.0, SAFETY_SIGMAS * sigma - tol_len)
     if nominal > 0:
-        change = np.floor((nominal - SAFETY_SIGMAS * sigma) / res_m) * res_m
+        change = np.floor((nominal - margin) / res_m) * res_m
         if change <= 0:
             action, change = ("none" if within else "wait"), 0.0
-        elif LANDING_SIGMAS * sigma > tol_len and not within:
+        elif margin + LANDING_SPREAD_SIGMAS * sigma > tol_len and not within:
             action = "first-cut"
         else:
             action = "cut"
             if within:
                 notes.append("already within tolerance; this cut centres it on the target")
     else:
-        change = -np.round(-nominal / res_m) * res_m
+        # Add the best estimate plus the margin: at two standard uncertainties
+        # the antenna then does not end short, and any surplus is a trim.
+        change = -np.ceil((-nominal + margin) / res_m) * res_m
         action = "none" if (within or change == 0) else "add"
         change = 0.0 if action == "none" else change
         if -change > LOADING_SUGGEST_FRACTION * af.built_length_m / n:

@@ -15,12 +15,14 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
     if advice.action in ("cut", "first-cut"):
         lines.append(
             f"  (needed {mm(abs(advice.nominal_per_arm_m))} ± {mm(advice.sigma_per_arm_m)} {arm}; "
-            f"the advice keeps a {advice_margin(advice)} safety margin against over-cutting and "
-            f"rounds down to {mm(advice.resolution_m)})")
+            f"the advice keeps {advice_margin(advice)} in hand so that, at 2 sigma, it cannot "
+            f"over-cut past the ± {advice.tolerance_pct:g} % tolerance; rounded down to "
+            f"{mm(advice.resolution_m)})")
     elif advice.action == "add":
         lines.append(
-            f"  (needed {mm(abs(advice.nominal_per_arm_m))} ± {mm(advice.sigma_per_arm_m)} {arm}, "
-            f"rounded to {mm(advice.resolution_m)})")
+            f"  (needed {mm(abs(advice.nominal_per_arm_m))} ± {mm(advice.sigma_per_arm_m)} {arm}; "
+            f"the advice adds {advice_margin(advice)} more so that, at 2 sigma, it does not end "
+            f"short; rounded up to {mm(advice.resolution_m)})")
     elif advice.action == "wait":
         lines.append(
             f"  (needed {mm(advice.nominal_per_arm_m)} ± {mm(advice.sigma_per_arm_m)} {arm})")
