@@ -47,8 +47,8 @@ CAL_RESIDUALS = (
 )
 #: Unremoved feed hardware (connector, balun leads, the balun's own line): a
 #: few centimetres of line whose impedance is not the system's.  Modelled as a
-#: line of FEED_HARDWARE_M (air-equivalent, one way) with a reflection
-#: FEED_HARDWARE_RHO at its ends (Z0 about 50 +- 10 ohm); to first order in
+#: line of FEED_HARDWARE_M (air-equivalent, one way: about 3.5 cm of solid-PE
+#: line) with a reflection FEED_HARDWARE_RHO at its ends (Z0 about 50 +- 10 ohm); to first order in
 #: beta*l it adds rho (1 - G^2) (2 j beta l) to the reflection (from the
 #: terminated-line formula, Pozar, Microwave Engineering, 4th ed., eq. 2.44,
 #: expanded for a short line).  Values are common practice, no source.  The
@@ -56,7 +56,7 @@ CAL_RESIDUALS = (
 #: It blurs where the antenna's own terminals are, so it enters the
 #: uncertainty of terminal quantities (X = 0, electrical length, efficiency)
 #: but not of the match the feed line sees, which includes the hardware.
-FEED_HARDWARE_M = 0.03
+FEED_HARDWARE_M = 0.05
 FEED_HARDWARE_RHO = 0.1
 
 

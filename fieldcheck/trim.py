@@ -214,6 +214,10 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
         change = np.floor((nominal - margin) / res_m) * res_m
         if change <= 0:
             action, change = ("none" if within else "wait"), 0.0
+            if action == "wait" and criterion == "resonance":
+                notes.append("X = 0 at the terminals is only as certain as the reference plane: "
+                             "de-embed the balun or fixture (--fixture) and hold the delay "
+                             "(--fix delay), or aim for the best match (--criterion match)")
         elif margin + LANDING_SPREAD_SIGMAS * sigma > tol_len and not within:
             action = "first-cut"
         else:
