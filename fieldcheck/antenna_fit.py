@@ -66,6 +66,13 @@ def _hardware_systematic(f_hz):
     return ((FEED_HARDWARE_RHO, lambda g: (1.0 - g * g) * two_beta_l),)
 
 
+#: Weak priors (mean, standard deviation) on parameters a narrow sweep cannot
+#: pin on its own: the user has removed the cable, so the residual delay is
+#: small (0 +- 0.3 ns, about 9 cm of air line one way), and feed hardware
+#: rarely adds more than a picofarad or two (0 +- 3 pF).  Common practice, no
+#: source; a sweep that clearly shows more overrides them.
+DELAY_PRIOR_S = (0.0, 0.3e-9)
+C_FEED_PRIOR_F = (0.0, 3e-12)
 #: Shunt conductance bound: 0.1 S is a 10-ohm shunt, far beyond any working feed.
 G_FEED_MAX_S = 0.1
 
@@ -279,10 +286,11 @@ def fit_antenna(sweep: Sweep, desc, *, model: AntennaModel | None = None,
     f, g = f_all[sel], g_line[sel]
 
     # Residual delay: start from the phase slope of measured over model
-    # reflection, and allow half a turn of round-trip phase either way of it.
+    # reflection (and from zero), and allow half a turn of round-trip phase
+    # beyond either.
     tau0 = features.phase_slope_delay_s(f, g, model.gamma(f, length0))
     tau_span = 0.25 / f_start
-    tau_bounds = (tau0 - tau_span, tau0 + tau_span)
+    tau_bounds = (min(tau0, 0.0) - tau_span, max(tau0, 0.0) + tau_span)
     if model.installation.kind == "horizontal":
         model = replace(model, mutual_ref_length_m=length0)
     if "delay_s" in fixed:
@@ -324,28 +332,34 @@ def _fit_once(model, f, g, length0, lo_len, hi_len, tau_bounds, tau0=0.0, start=
     start = start or {}
     fixed = fixed or {}
 
-    def spec(name, unit, default, lo, hi):
+    def spec(name, unit, default, lo, hi, prior=None):
         if name in fixed:
             v = float(fixed[name])
             return ParamSpec(name, unit, v, min(lo, v), max(hi, v), fixed=True)
-        return ParamSpec(name, unit, float(np.clip(start.get(name, default), lo, hi)), lo, hi)
+        return ParamSpec(name, unit, float(np.clip(start.get(name, default), lo, hi)), lo, hi,
+                         prior=prior)
 
     params = [
         spec("length_m", "m", length0, lo_len, hi_len),
         spec("r_loss_ohm", "ohm", 0.5, 0.0, R_LOSS_MAX_OHM),
-        spec("c_feed_f", "F", 0.2e-12, 0.0, C_FEED_MAX_F),
+        spec("c_feed_f", "F", 0.2e-12, 0.0, C_FEED_MAX_F, C_FEED_PRIOR_F),
         spec("g_feed_s", "S", 1e-5, 0.0, G_FEED_MAX_S),
-        spec("delay_s", "s", tau0, *tau_bounds),
+        spec("delay_s", "s", tau0, *tau_bounds, prior=DELAY_PRIOR_S),
     ]
     fun = model.gamma_from_values
     best = fit_reflection(f, g, fun, params, systematics=CAL_RESIDUALS)
-    if start or best.adequacy != "inadequate":
+    if start or "delay_s" in fixed:
         return best
-    # A residual delay rotates the trace; when the first start landed far from
-    # the data, try starts on both sides of zero too.
+    # The phase-slope start can mislead over a narrow or distorted sweep:
+    # always try the no-delay start too, and when neither lands near the
+    # data, starts on both sides.
     third = (tau_bounds[1] - tau_bounds[0]) / 6
-    for tau in (() if "delay_s" in fixed else (tau0 - third, tau0 + third)):
-        trial = [p if p.name != "delay_s" else replace(p, initial=tau) for p in params]
+    extra = [0.0] if abs(tau0) > 0.05 * third else []
+    for i, tau in enumerate(extra + [tau0 - third, tau0 + third]):
+        if i >= len(extra) and best.adequacy != "inadequate":
+            break
+        trial = [p if p.name != "delay_s" else replace(p, initial=float(np.clip(tau, *tau_bounds)))
+                 for p in params]
         r = fit_reflection(f, g, fun, trial, noise_sigma=best.noise_sigma, systematics=CAL_RESIDUALS)
         if r.chi2 < best.chi2 * (1 - 1e-6):
             best = r

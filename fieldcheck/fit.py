@@ -56,6 +56,10 @@ class ParamSpec:
     """One fit parameter.
 
     An initial value outside [lower, upper] is an error, never silently clamped.
+    ``prior`` (mean, sigma), when given, adds a Gaussian prior: the fit then
+    minimises chi-square plus ((value - mean) / sigma)^2, which keeps a
+    parameter that the data cannot pin (for example a residual delay over a
+    narrow sweep) near a physically sensible value; strong data still win.
     """
 
     name: str
@@ -64,6 +68,7 @@ class ParamSpec:
     lower: float = -np.inf
     upper: float = np.inf
     fixed: bool = False
+    prior: tuple | None = None
 
     def __post_init__(self):
         if not self.lower <= self.initial <= self.upper:
@@ -218,9 +223,13 @@ def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None, systema
         v.update({p.name: xi * s for p, xi, s in zip(free, x, scale)})
         return v
 
+    priors = [(i, p.prior[0] / s, p.prior[1] / s) for i, (p, s) in enumerate(zip(free, scale))
+              if p.prior is not None]
+
     def residuals(x):
         d = model(f, values_of(x)) - g
-        return np.concatenate([d.real, d.imag]) / sigma
+        prior_terms = [(x[i] - mean) / width for i, mean, width in priors]
+        return np.concatenate([d.real / sigma, d.imag / sigma, prior_terms])
 
     x0 = np.array([p.initial for p in free]) / scale
     lo = np.array([p.lower for p in free]) / scale
@@ -230,7 +239,7 @@ def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None, systema
     except ValueError as exc:  # model produced NaN/inf
         raise FitError(f"the model could not be evaluated during the fit: {exc}") from exc
     values = values_of(sol.x)
-    r = sol.fun
+    r = sol.fun[:n_res]  # the data part; priors are not measurements
     chi2 = float(r @ r)
     dof = n_res - len(free)
     red = chi2 / dof
@@ -245,7 +254,7 @@ def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None, systema
         raise FitError(f"covariance could not be computed: {exc}") from exc
     cov = (j_pinv @ j_pinv.T) * scale_cov * np.outer(scale, scale)
     g_fit = g + d
-    shift_map = -(j_pinv * scale[:, None]) / sigma
+    shift_map = -(j_pinv[:, :n_res] * scale[:, None]) / sigma
     cov = cov + _systematic_cov(shift_map, g_fit, systematics)
     err = np.sqrt(np.clip(np.diag(cov), 0, None))
     stderr = {p.name: 0.0 for p in params if p.fixed}

@@ -220,6 +220,11 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
                              "(--fix delay), or aim for the best match (--criterion match)")
         elif margin + LANDING_SPREAD_SIGMAS * sigma > tol_len and not within:
             action = "first-cut"
+        elif not af.resonance_in_sweep:
+            # The model carries the answer outside what was measured: step, then look again.
+            action = "first-cut"
+            notes.append("the answer extrapolates beyond the sweep, so it is given as a first cut; "
+                         "re-measure over a span that covers the target")
         else:
             action = "cut"
             if within:
