@@ -35,7 +35,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.optimize import brentq
 
-from .antenna_fit import AntennaFit, FitError, _propagate, feed_of, match_of, resonance_of
+from .antenna_fit import AntennaFit, FitError, feed_of, match_of, resonance_of
 from .errors import AdviceRefused
 from .features import vswr_bands
 from .sweep import return_loss_db, vswr_from_gamma
@@ -186,8 +186,7 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
     f_now = criterion_hz(af, L_now, criterion, _reference_hz(af))
     L_goal = solve_length_for(af, target_hz, criterion)
     d_el = L_now - L_goal  # electrical length to remove (negative: add)
-    sig_el = _propagate(lambda p: p["length_m"] - solve_length_for(af, target_hz, criterion, p),
-                        v, names, cov, af.fit.stderr)
+    sig_el = _change_sigma(af, L_goal, target_hz, criterion, cov)
 
     s, sig_model, source = _one_sweep_sensitivity(d_el, L_now / af.built_length_m)
     if sensitivity is not None:
@@ -250,6 +249,32 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
         headline="", notes=tuple(notes),
     )
     return _with_headline(advice)
+
+
+def _change_sigma(af: AntennaFit, L_goal: float, target_hz: float, criterion: str, cov) -> float:
+    """Standard uncertainty of the electrical change L_now - L_goal, m.
+
+    L_goal solves f_crit(L_goal; p) = target, so by implicit differentiation
+    dL_goal/dp_i = -(df/dp_i) / (df/dL) at L_goal: one finite difference per
+    parameter instead of a root solve per parameter.
+    """
+    v, names, err = af.fit.values, af.fit.names, af.fit.stderr
+    f0 = criterion_hz(af, L_goal, criterion, target_hz, v)
+    h_len = L_goal * 1e-5
+    df_dl = (criterion_hz(af, L_goal + h_len, criterion, target_hz, v) - f0) / h_len
+    grad = np.zeros(len(names))
+    try:
+        for i, n in enumerate(names):
+            if n == "length_m":
+                grad[i] = 1.0
+                continue
+            h = max(err[n], abs(v[n]) * 1e-6, 1e-18) * 0.01
+            p = dict(v)
+            p[n] = v[n] + h
+            grad[i] = (criterion_hz(af, L_goal, criterion, target_hz, p) - f0) / h / df_dl
+    except FitError:
+        return float("nan")
+    return float(np.sqrt(max(grad @ cov @ grad, 0.0)))
 
 
 def _reference_hz(af: AntennaFit) -> float:
