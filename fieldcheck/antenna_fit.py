@@ -354,7 +354,7 @@ def _fit_once(model, f, g, length0, lo_len, hi_len, tau_bounds, tau0=0.0, start=
     # always try the no-delay start too, and when neither lands near the
     # data, starts on both sides.
     third = (tau_bounds[1] - tau_bounds[0]) / 6
-    extra = [0.0] if abs(tau0) > 0.05 * third else []
+    extra = [0.0] if abs(best.values["delay_s"]) > DELAY_PRIOR_S[1] else []
     for i, tau in enumerate(extra + [tau0 - third, tau0 + third]):
         if i >= len(extra) and best.adequacy != "inadequate":
             break
