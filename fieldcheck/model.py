@@ -90,9 +90,11 @@ def installed_impedance_fast(f_hz, length_m: float, radius_m: float, installatio
     Free space and monopole come straight from the surface (image theory: a
     monopole of height h is half the dipole of length 2 h).  A horizontal dipole
     adds minus the mutual impedance with its image at 2 h, computed once by the
-    method of moments at ``mutual_ref_length_m`` (default: ``length_m``) and
-    cached: it varies slowly with the wire length, so a fit evaluates it at its
-    start length and is re-run once at the fitted length.
+    method of moments at ``mutual_ref_length_m`` and cached: it varies slowly
+    with the wire length, so a fit evaluates it at its start length and is
+    re-run once at the fitted length.  Without ``mutual_ref_length_m`` it
+    follows ``length_m`` (interpolated between cached lengths 0.2 % apart), as
+    predictions at another length need.
     """
     from .physics.surface import default_surface
 
@@ -101,11 +103,27 @@ def installed_impedance_fast(f_hz, length_m: float, radius_m: float, installatio
         return 0.5 * surf.impedance(f_hz, 2.0 * length_m, radius_m)
     z = surf.impedance(f_hz, length_m, radius_m)
     if installation.kind == "horizontal":
-        ref = float(mutual_ref_length_m or length_m)
-        f_grid, re_spline, im_spline = _image_mutual(ref, radius_m, installation.height_m)
         f = np.asarray(f_hz, float)
-        z = z - (re_spline(f) + 1j * im_spline(f))
+        if mutual_ref_length_m is not None:
+            z = z - _image_mutual_at(f, float(mutual_ref_length_m), radius_m, installation.height_m)
+        else:
+            # Lengths on a 0.2 % geometric grid, interpolated linearly: a root
+            # search over length then reuses a few cached solutions.
+            q = np.log(length_m) / np.log(_MUTUAL_LENGTH_STEP)
+            k = np.floor(q)
+            t = q - k
+            lo, hi = (float(_MUTUAL_LENGTH_STEP ** j) for j in (k, k + 1))
+            z = z - ((1 - t) * _image_mutual_at(f, lo, radius_m, installation.height_m)
+                     + t * _image_mutual_at(f, hi, radius_m, installation.height_m))
     return z
+
+
+_MUTUAL_LENGTH_STEP = 1.002
+
+
+def _image_mutual_at(f, length_m, radius_m, height_m):
+    _, re_spline, im_spline = _image_mutual(length_m, radius_m, height_m)
+    return re_spline(f) + 1j * im_spline(f)
 
 
 @functools.lru_cache(maxsize=32)

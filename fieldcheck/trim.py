@@ -30,7 +30,7 @@ Decision rules (all thresholds named below):
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 from scipy.optimize import brentq
@@ -124,9 +124,15 @@ class TrimAdvice:
 def criterion_hz(af: AntennaFit, length_m: float, criterion: str, guess_hz: float, values=None) -> float:
     """Criterion frequency of the fitted antenna at electrical length ``length_m``."""
     v = values or af.fit.values
+    model = _predicting(af)
     if criterion == "resonance":
-        return resonance_of(af.model, length_m, v, guess_hz)
-    return match_of(af.model, length_m, v, guess_hz)
+        return resonance_of(model, length_m, v, guess_hz)
+    return match_of(model, length_m, v, guess_hz)
+
+
+def _predicting(af: AntennaFit):
+    """The fitted model for other lengths: the ground-image term follows the length."""
+    return replace(af.model, mutual_ref_length_m=None)
 
 
 def solve_length_for(af: AntennaFit, target_hz: float, criterion: str, values=None) -> float:
@@ -313,11 +319,12 @@ def _predict(af: AntennaFit, length_m: float, target_hz: float, vswr_limit: floa
     v = af.fit.values
     fd = feed_of(v)
     try:
-        f_res = resonance_of(af.model, length_m, v, target_hz)
+        f_res = resonance_of(_predicting(af), length_m, v, target_hz)
     except FitError:
         f_res = None
-    f_match = match_of(af.model, length_m, v, target_hz)
-    gamma = lambda f: af.model.gamma(f, length_m, fd["r_loss_ohm"], fd["c_feed_f"], 0.0, fd["g_feed_s"])  # noqa: E731
+    f_match = match_of(_predicting(af), length_m, v, target_hz)
+    gamma = lambda f: _predicting(af).gamma(f, length_m, fd["r_loss_ohm"], fd["c_feed_f"], 0.0,  # noqa: E731
+                                            fd["g_feed_s"])
     g_t = gamma(np.array([target_hz]))[0]
     f = target_hz * np.linspace(0.75, 1.25, 1001)
     bands = vswr_bands(f, gamma(f), vswr_limit)
@@ -340,8 +347,6 @@ def _proportional_rule(af: AntennaFit, target_hz: float, criterion: str) -> floa
 
 
 def _with_headline(a: TrimAdvice) -> TrimAdvice:
-    from dataclasses import replace
-
     where = "EACH arm" if a.n_ends == 2 else "the element"
     total = f" ({fmt_mm(abs(a.total_m))} total)" if a.n_ends == 2 else ""
     if a.action == "cut":
