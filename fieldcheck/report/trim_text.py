@@ -12,12 +12,15 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
     n = advice.n_ends
     arm = "per arm" if n == 2 else "on the element"
     lines = [f"fieldcheck trim: {source}", "", "  " + advice.headline]
+    margin_m = abs(abs(advice.nominal_per_arm_m) - abs(advice.per_arm_m))
     if advice.action in ("cut", "first-cut"):
+        keep = (f"the advice keeps {advice_margin(advice)} in hand so that, at 2 sigma, it cannot "
+                f"over-cut past the ± {advice.tolerance_pct:g} % tolerance"
+                if margin_m >= advice.resolution_m else
+                f"even at 2 sigma it cannot over-cut past the ± {advice.tolerance_pct:g} % tolerance")
         lines.append(
             f"  (needed {mm(abs(advice.nominal_per_arm_m))} ± {mm(advice.sigma_per_arm_m)} {arm}; "
-            f"the advice keeps {advice_margin(advice)} in hand so that, at 2 sigma, it cannot "
-            f"over-cut past the ± {advice.tolerance_pct:g} % tolerance; rounded down to "
-            f"{mm(advice.resolution_m)})")
+            f"{keep}; rounded down to {mm(advice.resolution_m)})")
     elif advice.action == "add":
         lines.append(
             f"  (needed {mm(abs(advice.nominal_per_arm_m))} ± {mm(advice.sigma_per_arm_m)} {arm}; "
@@ -37,8 +40,12 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
     if af.measured_crossing_hz:
         rows.append(("X = 0 on the trace", mhz(af.measured_crossing_hz)))
     if af.f_res_hz is not None:
+        vague = af.f_res_hz.stderr > 0.005 * af.f_res_hz.value
         rows.append(("fitted resonance", f"{mhz_pm(af.f_res_hz.value, af.f_res_hz.stderr)} "
-                                         "(X = 0 at the antenna terminals)"))
+                                         "(X = 0 at the antenna terminals"
+                                         + ("; loose because the reference plane is not pinned: "
+                                            "--fix delay if you de-embedded to the terminals)"
+                                            if vague else ")")))
     else:
         rows.append(("fitted resonance", "none: no X = 0 at the terminals (feed C or loss hides it)"))
     rows += [
