@@ -225,6 +225,13 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
                              "(--fix delay), or aim for the best match (--criterion match)")
         elif margin + LANDING_SPREAD_SIGMAS * sigma > tol_len and not within:
             action = "first-cut"
+        elif criterion == "resonance" and "delay_s" in af.fit.names:
+            # X = 0 at the terminals hangs on a reference plane the fit could
+            # only estimate: never the whole way in one step.
+            action = "first-cut"
+            notes.append("X = 0 at the terminals depends on where the reference plane is, which "
+                         "this fit had to estimate: cut in steps, or de-embed to the terminals "
+                         "and use --fix delay")
         elif not af.resonance_in_sweep:
             # The model carries the answer outside what was measured: step, then look again.
             action = "first-cut"
