@@ -60,7 +60,29 @@ def reactance_crossings(f_hz: np.ndarray, z_ohm: np.ndarray) -> list[Crossing]:
         if 0 < i < len(x) - 1:
             kind = "series" if x[i + 1] > x[i - 1] else "parallel"
             out.append(Crossing(float(f_hz[i]), float(r[i]), kind, int(i)))
-    return sorted(out, key=lambda c: c.f_hz)
+    return _debounce(sorted(out, key=lambda c: c.f_hz))
+
+
+#: Crossings closer than this many samples are one event seen through noise.
+CHATTER_SAMPLES = 3
+
+
+def _debounce(crossings: list[Crossing]) -> list[Crossing]:
+    """Merge noise chatter: a run of crossings a few samples apart is one crossing
+    (odd count: X really changed sign; the middle one, with the run's net
+    direction, stands for the run) or
+    none (even count: X came back to where it was)."""
+    out, run = [], []
+    for c in crossings + [None]:
+        if c is not None and run and c.index - run[-1].index <= CHATTER_SAMPLES:
+            run.append(c)
+            continue
+        if run and len(run) % 2 == 1:
+            mid = run[len(run) // 2]
+            # Alternating run: the net change is the first crossing's direction.
+            out.append(Crossing(mid.f_hz, mid.r_ohm, run[0].kind, mid.index))
+        run = [c] if c is not None else []
+    return out
 
 
 @dataclass(frozen=True)

@@ -105,3 +105,14 @@ def test_list_cables_exits_0(capsys):
         main(["inspect", "--list-cables"])
     assert exc.value.code == 0
     assert "RG58" in capsys.readouterr().out
+
+
+def test_noise_chatter_at_a_crossing_counts_once():
+    from fieldcheck.features import reactance_crossings
+    f = np.linspace(1e6, 2e6, 101)
+    x = np.linspace(-50, 50, 101)
+    x[49:52] = [0.3, -0.2, 0.4]  # noise straddling zero near the true crossing
+    z = 60 + 1j * x
+    xs = reactance_crossings(f, z)
+    assert len(xs) == 1 and xs[0].kind == "series"
+    assert abs(xs[0].f_hz - 1.5e6) < 3 * (f[1] - f[0])
