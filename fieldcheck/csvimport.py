@@ -81,6 +81,7 @@ def read_csv(path, *, csv_format=None, freq_unit=None, z0_ohm=None) -> Sweep:
     layout = None
     rows, lines = [], []
     decimal_comma = False
+    last_comment = None
     for lineno, text in reader:
         stripped = text.strip()
         if not stripped:
@@ -88,10 +89,15 @@ def read_csv(path, *, csv_format=None, freq_unit=None, z0_ohm=None) -> Sweep:
         if stripped[0] in "#!":
             if stripped[1:].strip():
                 comments.append(stripped[1:].strip())
+                last_comment = (lineno, stripped[1:].strip())
             continue
         if layout is None:
-            layout = _Layout(path, lineno, stripped, csv_format, freq_unit)
-            if layout.has_header:
+            layout = _header_from_comment(path, last_comment, stripped, csv_format, freq_unit)
+            if layout is not None:
+                notes.append(f"column names taken from the comment on line {layout.line}")
+            else:
+                layout = _Layout(path, lineno, stripped, csv_format, freq_unit)
+            if layout.has_header and layout.line == lineno:
                 continue
         fields = layout.split(stripped)
         if len(fields) != layout.n_columns:
@@ -162,6 +168,24 @@ def _role(name: str) -> tuple[str | None, str | None]:
     if set(words) & _MAG_WORDS or (not words and "|" in name):
         return "mag", None
     return None, None
+
+
+def _header_from_comment(path, last_comment, first_line, csv_format, freq_unit):
+    """Some instruments write the column names as a comment (``# Frequency(Hz), ...``).
+
+    Used only when the first content line is all numbers, the comment has the
+    same number of fields, and it reads as a header; otherwise None.
+    """
+    if last_comment is None or not re.fullmatch(r"[\d\s.,;eE+\t-]+", first_line):
+        return None
+    lineno, text = last_comment
+    try:
+        layout = _Layout(path, lineno, text, csv_format, freq_unit)
+    except InputError:
+        return None
+    if not layout.has_header or len(layout.split(first_line)) != layout.n_columns:
+        return None
+    return layout
 
 
 class _Layout:

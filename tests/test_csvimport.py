@@ -167,3 +167,15 @@ def test_bad_csv_refused_with_line(row):
     assert exc.value.path == path
     assert exc.value.line == (int(row["line"]) if row["line"] else None)
     assert row["substring"] in str(exc.value)
+
+
+def test_column_names_in_a_comment_line_are_used(tmp_path):
+    # Some instruments write the header as a comment; the values must still be read
+    # as real/imaginary, checked against the numbers written.
+    p = tmp_path / "commented_header.csv"
+    rows = "\n".join(f"{100 + i}000000,0.{i + 1},-0.{i + 2}" for i in range(6))
+    p.write_text("# Frequency(Hz), S11(RE), S11(IM)\n" + rows + "\n")
+    sw = read_csv(str(p))
+    np.testing.assert_allclose(sw.f_hz[0], 100e6)
+    np.testing.assert_allclose(sw.s11[0], 0.1 - 0.2j)
+    assert any("comment on line 1" in n for n in sw.notes)
