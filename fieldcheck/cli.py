@@ -19,11 +19,11 @@ from .errors import FieldcheckError
 COMMAND_MODULES = (
     "trim",
     "inspect",
+    "diagnose",
     "locate",
     "wheeler",
     "predict",
     "simulate",
-    "diagnose",
 )
 
 EXIT_OK, EXIT_INTERNAL, EXIT_INPUT = 0, 1, 2
@@ -42,7 +42,7 @@ def build_parser() -> argparse.ArgumentParser:
         description=(
             "Read a VNA sweep of a wire antenna, move it to the antenna's own terminals, "
             "fit it with a physical model and answer: where does it resonate, how much to "
-            "cut, does it pass, and what is wrong if the match is bad."
+            "cut, and what is wrong if the match is bad.  Start with 'fieldcheck trim --help'."
         ),
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
