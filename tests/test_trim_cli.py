@@ -106,3 +106,27 @@ def test_fix_option_parses_units_and_refuses_nonsense(tmp_path, capsys):
     for bad in ("length", "feed-c=-1pF", "loss=2mm"):
         assert main(["trim", p, *OPTS, "--arm", "510mm", "--fix", bad]) == 2
         assert "--fix" in capsys.readouterr().err
+
+
+def test_plot_is_written_and_its_curves_follow_the_fit(tmp_path, capsys):
+    from fieldcheck.antenna_fit import fit_antenna
+    from fieldcheck.curves import trim_curves
+    from fieldcheck.importer import read_sweep
+    from fieldcheck.trim import advise_trim
+
+    p = _write(tmp_path, "a", 1.03)
+    png = tmp_path / "trim.png"
+    assert main(["trim", p, *OPTS, "--arm", "510mm", "--plot", str(png)]) == 0
+    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (PNG spec, section 5.2)
+    d = description_from_options(form="dipole", arm="510mm", diameter="2mm", gap="10mm", target="146MHz")
+    sw = read_sweep(p)
+    af = fit_antenna(sw, d)
+    adv = advise_trim(af, 146e6)
+    c = trim_curves(af, sw, af.fit.values["length_m"] - adv.total_m * adv.sensitivity, 146e6, 2.0)
+    # The fitted model follows the measurement (noise 0.002 in Gamma).
+    sel = c.rl_meas_db < 20
+    assert np.max(np.abs(c.rl_model_db[sel] - c.rl_meas_db[sel])) < 1.0
+    # After the change the best match sits at the target, within the landing tolerance.
+    assert abs(c.f_hz[np.argmax(c.rl_after_db)] / 146e6 - 1) < 0.004
+    assert main(["trim", p, *OPTS, "--arm", "510mm", "--plot", str(tmp_path / "no" / "dir.png")]) == 2
+    assert "cannot write the plot" in capsys.readouterr().err

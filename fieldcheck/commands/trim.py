@@ -52,6 +52,9 @@ def add_arguments(p):
                         f"(default {DEFAULT_LENGTH_SIGMA_M * 1e3:g}mm)")
     _common.add_fix_argument(t)
     _common.add_output_arguments(p)
+    p.add_argument("--plot", default=None, metavar="FILE.png",
+                   help="also draw return loss (measured, fitted, predicted after the change) "
+                        "and the impedance at the antenna to a PNG file")
 
 
 def run(args) -> int:
@@ -66,6 +69,7 @@ def run(args) -> int:
     advice = advise_trim(af, desc.target.frequency_hz, criterion=desc.target.criterion,
                          tolerance_pct=args.tolerance, vswr_limit=desc.target.vswr_limit)
     _emit(args, sweep.source, desc, af, advice, None)
+    _plot(args, sweep, af, advice, desc)
     return 0
 
 
@@ -87,7 +91,19 @@ def _run_history(args, desc) -> int:
                          sensitivity_source=f"trim history of {len(fits)} sweeps: kappa = "
                                             f"{hist.kappa:.4f} ± {hist.kappa_sigma:.4f}")
     _emit(args, sweep.source, d, af, advice, hist)
+    _plot(args, sweep, af, advice, d)
     return 0
+
+
+def _plot(args, sweep, af, advice, desc):
+    if not args.plot:
+        return
+    from ..curves import trim_curves
+    from ..report.plots import plot_trim
+
+    after = af.fit.values["length_m"] - advice.total_m * advice.sensitivity
+    curves = trim_curves(af, sweep, after, advice.target_hz, desc.target.vswr_limit)
+    plot_trim(args.plot, curves, f"fieldcheck trim: {sweep.source}", advice.headline)
 
 
 def _emit(args, source, desc, af, advice, hist):
