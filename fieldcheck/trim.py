@@ -98,6 +98,10 @@ class TrimAdvice:
         return {
             "action": self.action,
             "headline": self.headline,
+            # Unsigned amount to cut ('cut', 'first-cut') or add ('add'), per free end and in total.
+            "amount_per_arm_m": abs(self.per_arm_m),
+            "amount_total_m": abs(self.total_m),
+            # Signed change: positive removes metal, negative adds it.
             "per_arm_m": self.per_arm_m,
             "total_m": self.total_m,
             "n_ends": self.n_ends,

@@ -130,3 +130,12 @@ def test_plot_is_written_and_its_curves_follow_the_fit(tmp_path, capsys):
     assert abs(c.f_hz[np.argmax(c.rl_after_db)] / 146e6 - 1) < 0.004
     assert main(["trim", p, *OPTS, "--arm", "510mm", "--plot", str(tmp_path / "no" / "dir.png")]) == 2
     assert "cannot write the plot" in capsys.readouterr().err
+
+
+def test_json_states_amount_and_direction_unambiguously(tmp_path, capsys):
+    short = _write(tmp_path, "short", 0.96)
+    assert main(["trim", short, *OPTS, "--arm", "475mm", "--json"]) == 0
+    adv = json.loads(capsys.readouterr().out)["advice"]
+    assert adv["action"] == "add"
+    assert adv["amount_per_arm_m"] > 0 and adv["per_arm_m"] == -adv["amount_per_arm_m"]
+    assert adv["amount_total_m"] == pytest.approx(2 * adv["amount_per_arm_m"])
