@@ -114,6 +114,7 @@ class Observations:
     built_length_m: float | None = None
     n_ends: int | None = None
     fit: object | None = None        # AntennaFit, None when no description or the fit failed
+    wire_resonance: tuple | None = None  # (f_hz, r_ohm, f_stderr_hz) of the fitted wire alone
     fit_problem: str | None = None
     residual_delay_s: float | None = None
     residual_delay_stderr_s: float | None = None
@@ -125,11 +126,27 @@ class Observations:
     cable_vf: float | None = None
     notes: tuple = ()
 
+    def fitted_resonance(self) -> float | None:
+        """Resonance of the antenna itself from a usable fit (Hz), or None.
+
+        The wire's own X = 0 (fitted length and loss, without the fitted feed
+        capacitance and shunt conductance) when available: the as-built design
+        resonance it is compared with has no feed hardware either, and a few pF
+        across the feed moves the terminal X = 0 by a few percent on its own.
+        """
+        fit = self.fit
+        if fit is None or fit.fit.adequacy == "inadequate":
+            return None
+        if self.wire_resonance is not None:
+            return self.wire_resonance[0]
+        return fit.f_res_hz.value if fit.f_res_hz is not None else None
+
     def measured_resonance(self):
         """(f_hz, r_ohm, how) of the resonance to compare with the design, or None."""
-        fit = self.fit
-        if fit is not None and fit.fit.adequacy != "inadequate" and fit.f_res_hz is not None:
-            return fit.f_res_hz.value, fit.r_at_res_ohm, "fitted"
+        if self.fitted_resonance() is not None:
+            if self.wire_resonance is not None:
+                return self.wire_resonance[0], self.wire_resonance[1], "fitted"
+            return self.fit.f_res_hz.value, self.fit.r_at_res_ohm, "fitted"
         if not self.series_crossings:
             return None
         ref = self.f_design_hz or float(np.median(self.f_hz))
@@ -255,6 +272,29 @@ def _design(desc, notes):
     return model, float(built), (2 if form == "dipole" else 1), float(f_d), r_rad + r_loss, r_loss
 
 
+def wire_resonance(fit) -> tuple | None:
+    """X = 0 of the fitted wire alone: (f_hz, r_ohm at the terminals, f standard uncertainty Hz).
+
+    Uses the fitted length and loss resistance without the feed capacitance
+    and shunt conductance.  Resonance scales as 1 / length for a thin wire
+    (Balanis, Antenna Theory, 4th ed., section 4.6), so its relative
+    uncertainty is that of the fitted length.  None when the model has no
+    resonance near the fit.
+    """
+    from .antenna_fit import _len_factor, model_resonance_hz
+
+    v = fit.fit.values
+    length_m, r_loss = v["length_m"], v["r_loss_ohm"]
+    guess = (fit.f_res_hz.value if fit.f_res_hz is not None
+             else C0_M_PER_S / (2.0 * length_m * _len_factor(fit.model)))
+    try:
+        f_w = model_resonance_hz(fit.model, length_m, r_loss, 0.0, guess)
+    except FitError:
+        return None
+    r_w = float(fit.model.z_terminals(np.array([f_w]), length_m, r_loss)[0].real)
+    return float(f_w), r_w, float(f_w * fit.length_m.stderr / length_m)
+
+
 def _fit(sweep: Sweep, desc, model, built, r_loss, notes):
     """Fit the antenna; when that fails, try again after removing a phase-slope delay estimate."""
     from .antenna_fit import fit_antenna
@@ -269,7 +309,7 @@ def _fit(sweep: Sweep, desc, model, built, r_loss, notes):
     g_model = model.gamma(sweep.f_hz, built, r_loss, 0.0)
     t_est = phase_slope_delay_s(sweep.f_hz, sweep.s11, g_model)
     best, t_pre = fit0, 0.0
-    if abs(t_est) * C0_M_PER_S > sig.REFPLANE_MIN_M:
+    if abs(t_est) * C0_M_PER_S > sig.REFPLANE_HARDWARE_M:
         moved = sweep.with_s11(sweep.s11 * np.exp(2j * TWO_PI * sweep.f_hz * t_est),
                                note=f"diagnosis: trial removal of {t_est * 1e9:.3f} ns")
         try:
@@ -313,6 +353,8 @@ def observe(sweep: Sweep, desc=None, *, raw_sweep: Sweep | None = None,
             kw["fit_problem"] = problem
         except FieldcheckError as exc:
             notes.append(f"physics expectations not available: {exc}")
+    if fit is not None and fit.fit.adequacy != "inadequate":
+        kw["wire_resonance"] = wire_resonance(fit)
     if fit is not None and fit.fit.residual_rms < DELAY_FIT_RMS_MAX and fit.f_res_hz is not None:
         kw["residual_delay_s"] = t_pre + fit.fit.values["delay_s"]
         kw["residual_delay_stderr_s"] = fit.fit.stderr["delay_s"] or None
@@ -324,7 +366,7 @@ def observe(sweep: Sweep, desc=None, *, raw_sweep: Sweep | None = None,
         # before looking for ripple and noise (it is reported from the winding).
         t_flat = phase_slope_delay_s(f, g, np.ones_like(g))
     g_flat = g * np.exp(2j * TWO_PI * f * t_flat)
-    if abs(t_known) * C0_M_PER_S > sig.REFPLANE_MIN_M:
+    if abs(t_known) * C0_M_PER_S > sig.REFPLANE_HARDWARE_M:
         # Read the trace at the antenna: with the residual delay removed.
         z_line = impedance_from_gamma(g_flat, sweep.z0_ohm)
         crossings = tuple((c.f_hz, c.r_ohm) for c in
@@ -409,6 +451,14 @@ def _no_fault(o: Observations, top: Cause | None) -> Cause:
         ev.append(f"{len(o.tdr.peaks)} reflection(s) along the cable, none a fault.")
     # 1 - logistic(z) = logistic(-z): the no-fault margin mirrors the strongest suspicion.
     z = 3.0 if top is None else -top.margin
+    fd = o.f_design_hz
+    if fd and o.f_hz[0] <= fd <= o.f_hz[-1] and (
+            meas is None or not sig.OPEN_BAND[0] < meas[0] / fd < sig.OPEN_BAND[1]):
+        # Nothing is "fine" about an antenna with no resonance where it should have one.
+        z = min(z, sig.NO_FAULT_Z_NO_RESONANCE)
+        ev.append(f"but no resonance was found within {100 * (sig.OPEN_BAND[0] - 1):+.0f}.."
+                  f"{100 * (sig.OPEN_BAND[1] - 1):+.0f} % of the design resonance "
+                  f"{fd / 1e6:.5g} MHz.")
     ev.append(f"strongest other suspicion: {top.title} at {100 * top.confidence:.0f} %."
               if top is not None else f"no signature reached {100 * sig.REPORT_MIN_CONFIDENCE:.0f} %.")
     nxt = ("Compare the match with the target; if it is still not what you need, trim as "

@@ -49,17 +49,38 @@ R_RATIO_THRESHOLD = 1.5
 BALUN_RATIO_TOLERANCE = 1.3
 #: A short at the feed looks like a small inductor: reactance positive at
 #: SHORT_X_POSITIVE_FRACTION of the points, median X / omega below SHORT_L_MAX_H
-#: (30 nH: a short seen through up to about 10 cm of 50-ohm line, L = Z0 l / v)
-#: and median resistance below SHORT_R_FRACTION z0.
+#: and median resistance below SHORT_R_FRACTION z0.  60 nH: a short seen
+#: through up to about 20 cm (air-equivalent) of 50..65 ohm line, L = Z0 l / v
+#: (shorted line Z_in = j Z0 tan(beta l) for small beta l, Pozar, Microwave
+#: Engineering, 4th ed., section 2.3): the balun's own line and adapters (up
+#: to about 10 cm) plus what a 1 % velocity-factor error leaves of a few metres
+#: of removed cable.
 SHORT_X_POSITIVE_FRACTION = 0.9
-SHORT_L_MAX_H = 30e-9
+SHORT_L_MAX_H = 60e-9
 SHORT_R_FRACTION = 0.1
 #: A reactance zero whose resistance exceeds this multiple of the expected one is
 #: not the antenna's half-wave resonance (beyond a 4:1 balun error with its tolerance).
 PLAUSIBLE_R_FACTOR = 6.0
-#: Reactance at the design resonance more capacitive than this (in units of z0)
-#: with no resonance near the design means an open or broken element.
-OPEN_X_FRACTION = 2.0
+#: Band around the as-built design resonance where its X = 0 must appear
+#: (frequency ratios): a length error of up to about 25 % still resonates
+#: inside it.
+OPEN_BAND = (0.75, 1.33)
+#: The sweep must cover at least this fraction of OPEN_BAND (in log frequency)
+#: before the absence of a resonance there counts as evidence.
+OPEN_MIN_COVERAGE = 0.5
+#: Closest approach of the reactance to zero within OPEN_BAND, in units of z0,
+#: at which "capacitive throughout" is at threshold (z = 0).  The feed gap,
+#: balun and connector capacitance (a few pF: -j200..-j500 ohm at VHF) in
+#: shunt with a healthy half-wave dipole can keep its X a few to about
+#: 20 ohm below zero across its resonance, so no X = 0 crossing alone is not
+#: enough; a broken arm leaves a short stub in series, tens to hundreds of
+#: ohm capacitive.  Each halving / doubling is one unit of z.
+OPEN_X_FRACTION = 0.4
+#: Margin given to "no resonance where the design has one" on its own, when
+#: the model fit cannot find a resonance there either (FitError, inadequate
+#: fit, or a fitted resonance outside OPEN_BAND): at threshold, i.e. the open
+#: element is then never ranked below "no fault found".
+OPEN_Z_NO_RESONANCE = 0.0
 #: A series resonance within this frequency-ratio range of twice the design
 #: resonance is the half-length signature of a broken element.
 OPEN_DOUBLE_RANGE = (1.6, 2.5)
@@ -73,10 +94,18 @@ OUTSIDE_VF_RANGE = (0.8, 1.0)
 RIPPLE_MIN_SNR = 6.0
 #: Ripple period within this relative tolerance of c VF / (2 L) "matches" the cable.
 RIPPLE_PERIOD_RTOL = 0.2
-#: Residual reference-plane error reported above this free-space length, m: a
-#: balun's or adapter's own few cm of line (up to about 10 cm free-space
-#: equivalent) is normal on a bench.
-REFPLANE_MIN_M = 0.10
+#: Feed hardware left in front of the terminals on any bench: a balun's own
+#: line of a few cm (2..6 cm at VF 0.7 is 3..9 cm air-equivalent) plus
+#: adapters, about 10 cm of free space one way.  A residual delay is judged
+#: by how far it exceeds this floor, never counting the floor as a fault.
+REFPLANE_HARDWARE_M = 0.10
+#: A reference-plane fault is a cable left in or removed with the wrong
+#: length: tens of cm.  A residual delay of this free-space length is at
+#: threshold (z = 0); each doubling is one unit of z.
+REFPLANE_MIN_M = 0.25
+#: The excess over REFPLANE_HARDWARE_M must also exceed this many standard
+#: uncertainties of the fitted delay (z = 0 there, one unit per 2 sigma).
+REFPLANE_SIGMAS = 3.0
 #: A measured |S11| above 1 by more than this (plus 3 noise sigma) is a calibration fault.
 CAL_GAMMA_MARGIN = 0.02
 #: A jump between adjacent points this many robust sigmas above the trace's own
@@ -101,6 +130,11 @@ CABLE_END_FRACTION = 0.05
 REPORT_MIN_CONFIDENCE = 0.15
 #: Below this confidence for every fault, "no fault found" is offered.
 NO_FAULT_BELOW = 0.5
+#: Largest margin of "no fault found" when a description is given, its design
+#: resonance lies in the sweep, and no resonance (fitted or read off the trace)
+#: lies within OPEN_BAND of it (10 %: something is wrong even if no signature
+#: can say what).
+NO_FAULT_Z_NO_RESONANCE = -1.0
 
 
 def confidence(z: float) -> float:
@@ -285,15 +319,33 @@ def open_element(o: Observations) -> Cause | None:
                       -0.5, ev, "Check both arms for continuity from the feed terminal to "
                       "the tip.", where="elements", at_height=True)
     fd = o.f_design_hz
+    lo_b, hi_b = OPEN_BAND
     r_max = PLAUSIBLE_R_FACTOR * o.r_expected_ohm if o.r_expected_ohm else np.inf
-    near = [c for c in o.series_crossings if 0.75 < c[0] / fd < 1.33 and c[1] < r_max]
+    near = [c for c in o.series_crossings if lo_b < c[0] / fd < hi_b and c[1] < r_max]
     double = [c for c in o.series_crossings if OPEN_DOUBLE_RANGE[0] < c[0] / fd < OPEN_DOUBLE_RANGE[1]]
     if near or not (f[0] <= fd <= f[-1]):
         return None
+    fit_res = o.fitted_resonance()
+    if fit_res is not None and lo_b < fit_res / fd < hi_b:
+        return None  # the model finds the antenna's resonance where expected
+    band = (f >= lo_b * fd) & (f <= hi_b * fd)
+    if np.count_nonzero(band) < 2:
+        return None
+    coverage = math.log(f[band][-1] / f[band][0]) / math.log(hi_b / lo_b)
+    x_near = float(x[band].max())  # closest approach to a resonance
+    if coverage < OPEN_MIN_COVERAGE or x_near >= 0.0:
+        return None  # band not swept, or X turns inductive: not capacitive throughout
     x_d = float(np.interp(fd, f, x))
-    z = log_margin(max(-x_d, 1e-6), OPEN_X_FRACTION * zref)
-    ev = [f"no resonance within -25..+33 % of the design resonance {_mhz(fd)}; the reactance "
-          f"there is {x_d:.0f} ohm (limit {-OPEN_X_FRACTION * zref:.0f} ohm)."]
+    z = max(log_margin(-x_near, OPEN_X_FRACTION * zref), OPEN_Z_NO_RESONANCE)
+    fit_txt = ("the antenna model finds no resonance there either" if fit_res is None else
+               f"the model's resonance {_mhz(fit_res)} is outside that band")
+    if o.fit is not None and o.fit.fit.adequacy == "inadequate":
+        fit_txt = "the antenna model does not fit the trace (inadequate fit)"
+    ev = [f"no resonance within {100 * (lo_b - 1):+.0f}..{100 * (hi_b - 1):+.0f} % of the design "
+          f"resonance {_mhz(fd)} ({100 * coverage:.0f} % of that band swept); {fit_txt}.",
+          f"the reactance stays capacitive across the band: at best {x_near:.0f} ohm, "
+          f"{x_d:.0f} ohm at the design resonance (threshold {-OPEN_X_FRACTION * zref:.0f} ohm; "
+          "a healthy dipole behind its feed capacitance stays within about 20 ohm of zero)."]
     if double:
         z = max(z, 0.0) + 1.0
         ev.append(f"a resonance at {_mhz(double[0][0])}, {double[0][0] / fd:.2f} times the "
@@ -354,11 +406,18 @@ def reference_plane(o: Observations) -> Cause | None:
         t = o.residual_delay_s
         metres = C0_M_PER_S * t
         z = log_margin(abs(metres), REFPLANE_MIN_M)
+        excess_m = abs(metres) - REFPLANE_HARDWARE_M
+        sigma_txt = ""
         if o.residual_delay_stderr_s:
-            z = min(z, (abs(t) / o.residual_delay_stderr_s - 3.0) / 2.0)
-        ev.append(f"the fit needs a residual one-way delay of {t * 1e12:.0f} ps: "
+            sigma_m = C0_M_PER_S * o.residual_delay_stderr_s
+            z = min(z, (excess_m / sigma_m - REFPLANE_SIGMAS) / 2.0)
+            sigma_txt = f" +- {o.residual_delay_stderr_s * 1e12:.0f}"
+        ev.append(f"the fit needs a residual one-way delay of {t * 1e12:.0f}{sigma_txt} ps: "
                   f"{metres * 100:+.1f} cm of free space, {metres * vf * 100:+.1f} cm "
                   f"of VF {vf:g} cable.")
+        ev.append(f"feed hardware (balun line, adapters) accounts for up to about "
+                  f"{REFPLANE_HARDWARE_M * 100:.0f} cm of free space; a cable error is "
+                  f"tens of cm (threshold {REFPLANE_MIN_M * 100:.0f} cm).")
     if o.winding_turns > REFPLANE_MAX_TURNS:
         span = o.f_hz[-1] - o.f_hz[0]
         t_min = (o.winding_turns - 1.0) / (2.0 * span)
