@@ -48,6 +48,10 @@ SAFETY_SIGMAS = 2.0
 #: One-sided 90 % point of a Gaussian: the margin plus this many sigma must fit
 #: inside the tolerance for a one-step landing; otherwise advise a first cut.
 LANDING_SPREAD_SIGMAS = 1.28
+#: A change of more than this fraction of the whole length is a rebuild, not a
+#: trim: the model then answers far from what was measured (common practice,
+#: no source).
+REBUILD_FRACTION = 0.2
 #: Adding more than this fraction of the arm suggests loading instead.
 LOADING_SUGGEST_FRACTION = 0.10
 
@@ -214,6 +218,15 @@ def advise_trim(af: AntennaFit, target_hz: float, *, criterion: str = "match",
     if not np.isfinite(sigma):
         raise AdviceRefused("no trim advice: the uncertainty of the needed change cannot be computed "
                             "(the fitted resonance is unstable); run 'fieldcheck diagnose' on this sweep")
+    if abs(nominal) * n > REBUILD_FRACTION * af.built_length_m:
+        new_total = af.built_length_m - nominal * n
+        what = "tip to tip" if n == 2 else "high"
+        raise AdviceRefused(
+            f"no trim advice: reaching {target_hz / 1e6:.6g} MHz needs each "
+            f"{'arm' if n == 2 else 'element'} {'shortened' if nominal > 0 else 'lengthened'} by "
+            f"{abs(nominal) * 1e3:.0f} mm ({abs(nominal) * n / af.built_length_m:.0%} of the length): "
+            f"that is a rebuild, not a trim. Build it about {new_total * 1e3:.0f} mm {what} and measure "
+            "again, or check the target and the antenna description")
     res_m = cut_resolution_m(af.built_length_m / n)
     tol_len = tolerance_pct / 100 * L_goal / s / n  # per-arm length equivalent of the tolerance
 

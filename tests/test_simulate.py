@@ -17,6 +17,7 @@ Descriptions below are invented demo builds; no value of theirs is a check value
 from __future__ import annotations
 
 import dataclasses
+from pathlib import Path
 import json
 
 import numpy as np
@@ -359,3 +360,11 @@ def test_cli_writes_a_file_inspect_reads(tmp_path, capsys):
     assert rc == 0
     text = capsys.readouterr().out
     assert "SIMULATED" in text and "# MHz S DB R 50" in (tmp_path / "t.s1p").read_text()
+
+
+def test_cli_span_far_from_the_antenna_is_refused(tmp_path, capsys):
+    from fieldcheck.cli import main
+    ant = Path(__file__).parent / "data" / "antenna" / "good_dipole.toml"
+    code = main(["simulate", "--antenna", str(ant), "--span", "1:2", "--out", str(tmp_path / "x.s1p")])
+    assert code == 2
+    assert "check the units" in capsys.readouterr().err

@@ -131,3 +131,16 @@ def test_half_wave_rule_of_thumb_is_near_the_model():
     f_res = model_resonance_hz(m, 0.977, 0.0, 0.0, 146e6)
     assert abs(f_res / 146e6 - 1) < 0.02
     assert f_res < C0_M_PER_S / (2 * 0.977)  # shorter than a free-space half wave
+
+
+def test_a_change_that_is_really_a_rebuild_is_refused_with_a_length_to_build():
+    from fieldcheck.errors import AdviceRefused
+    d, m, af = _fit(490, 0.99)
+    with pytest.raises(AdviceRefused, match="rebuild, not a trim"):
+        advise_trim(af, 60e6)
+    # About a half-wave at 60 MHz: 2.5 m tip to tip (0.48 c / f, common practice), within 10 %.
+    try:
+        advise_trim(af, 60e6)
+    except AdviceRefused as exc:
+        built = float(str(exc).split("Build it about ")[1].split(" mm")[0]) / 1e3
+        assert abs(built / (0.48 * C0_M_PER_S / 60e6) - 1) < 0.1

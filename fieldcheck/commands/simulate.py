@@ -119,9 +119,30 @@ def render_text(out_path: str, sim) -> str:
     return "\n".join(lines)
 
 
+#: Electrical length range (kL of the dipole, or of a monopole's image) a demo
+#: sweep must reach: below about 0.05 the antenna is a capacitor and the
+#: span is almost surely in the wrong unit; above 12 the wire is many
+#: wavelengths long.
+_KL_SPAN = (0.05, 12.0)
+
+
+def _check_span_fits_antenna(f_hz, desc) -> None:
+    from ..constants import C0_M_PER_S, TWO_PI
+
+    a = desc.antenna
+    wire = a.total_length_m * (2.0 if a.form == "monopole" else 1.0)
+    kl_lo, kl_hi = (TWO_PI * f * wire / C0_M_PER_S for f in (f_hz[0], f_hz[-1]))
+    if kl_hi < _KL_SPAN[0] or kl_lo > _KL_SPAN[1]:
+        half_wave_hz = C0_M_PER_S / (2.0 * wire)
+        raise InputError(f"--span {f_hz[0]:.6g}..{f_hz[-1]:.6g} Hz is far from where this antenna works "
+                         f"(half-wave near {half_wave_hz / 1e6:.4g} MHz): check the units, e.g. "
+                         f"{0.8 * half_wave_hz / 1e6:.4g}MHz:{1.25 * half_wave_hz / 1e6:.4g}MHz")
+
+
 def run(args) -> int:
     desc = _antenna_args.description_from_args(args, require_target=False)
     f_hz = parse_span(args.span)
+    _check_span_fits_antenna(f_hz, desc)
     effects = (bench_effects.BenchEffects.clean() if args.effects == "clean"
                else bench_effects.BenchEffects.typical(args.seed))
     if args.noise is not None:
