@@ -9,8 +9,9 @@ scikit-rf's reader (``skrf.io.touchstone``), which does the format conversions
 
 scikit-rf's reader alone is lenient (a missing option line silently means GHz,
 MA, 50 ohm; NaN, R <= 0, unsorted or duplicate frequencies pass; a wrong column
-count gives an opaque numpy message), and ``skrf.Network(path)`` tries to
-unpickle a file first, so it is never called on a user's file.
+count gives an opaque numpy message), and the ``skrf.Network`` constructor,
+given a file name, tries to unpickle the file first, so it never sees a
+user's file.
 """
 
 from __future__ import annotations
