@@ -149,6 +149,17 @@ class AntennaFit:
         return Derived(self.fit.values["length_m"], float(np.sqrt(self.terminal_covariance[i, i])), "m")
 
     @property
+    def length_repeatability_m(self) -> float:
+        """Statistical standard error of the electrical length alone, m.
+
+        Systematic terms (calibration residuals, feed hardware) are the same
+        for every sweep on one bench, so they cancel in differences between
+        sweeps; a trim history weighs its points with this.
+        """
+        i = self.fit.names.index("length_m")
+        return float(np.sqrt(self.fit.covariance_statistical[i, i]))
+
+    @property
     def end_correction_per_end_m(self) -> Derived:
         e = self.length_error_m
         return Derived(e.value / self.n_ends, e.stderr / self.n_ends, "m")

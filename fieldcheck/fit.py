@@ -115,6 +115,9 @@ class FitResult:
         Gamma_model - Gamma_measured at ``f_hz``.
     gamma_model : ndarray (complex)
         The fitted model at ``f_hz``.
+    covariance_statistical : ndarray
+        The statistical part of ``covariance`` alone (no systematic terms):
+        what differs from one sweep to the next on the same bench.
     shift_map : ndarray, shape (n_free, 2 n)
         Linear map from a perturbation of the data (real parts then imaginary
         parts, in Gamma) to the parameter shift it causes: the negative
@@ -143,6 +146,7 @@ class FitResult:
     residual: np.ndarray = field(repr=False)
     gamma_model: np.ndarray = field(repr=False, default=None)
     shift_map: np.ndarray = field(repr=False, default=None)
+    covariance_statistical: np.ndarray = field(repr=False, default=None)
 
     def to_dict(self) -> dict:
         return {
@@ -252,10 +256,10 @@ def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None, systema
         j_pinv = np.linalg.pinv(J)
     except np.linalg.LinAlgError as exc:  # pragma: no cover - pinv rarely fails
         raise FitError(f"covariance could not be computed: {exc}") from exc
-    cov = (j_pinv @ j_pinv.T) * scale_cov * np.outer(scale, scale)
+    cov_stat = (j_pinv @ j_pinv.T) * scale_cov * np.outer(scale, scale)
     g_fit = g + d
     shift_map = -(j_pinv[:, :n_res] * scale[:, None]) / sigma
-    cov = cov + _systematic_cov(shift_map, g_fit, systematics)
+    cov = cov_stat + _systematic_cov(shift_map, g_fit, systematics)
     err = np.sqrt(np.clip(np.diag(cov), 0, None))
     stderr = {p.name: 0.0 for p in params if p.fixed}
     stderr.update({p.name: float(e) for p, e in zip(free, err)})
@@ -287,6 +291,7 @@ def fit_reflection(f_hz, gamma_meas, model, params, *, noise_sigma=None, systema
         residual=d,
         gamma_model=g_fit,
         shift_map=shift_map,
+        covariance_statistical=cov_stat,
     )
 
 

@@ -157,3 +157,12 @@ def test_fixing_an_unknown_parameter_is_refused():
     f = np.linspace(120e6, 170e6, 201)
     with pytest.raises(InputError, match="fixable"):
         fit_antenna(_sweep(d, TRUTH, f, 0.002, 1), d, fixed={"length_m": 1.0})
+
+
+def test_repeatability_excludes_the_bench_systematics():
+    # Calibration residuals are common to every sweep on one bench; the trim history
+    # weighs its points by the statistical error alone, which must be the smaller.
+    d = _desc()
+    f = np.linspace(120e6, 170e6, 401)
+    af = fit_antenna(_sweep(d, TRUTH, f, 0.002, 11), d)
+    assert 0 < af.length_repeatability_m < af.length_m.stderr

@@ -82,8 +82,10 @@ def _run_history(args, desc) -> int:
         sweep = _common.load_sweep(args, path, d.feed)
         fits.append((sweep, d, fit_antenna(sweep, d, fixed=args.fixed)))
     n_ends = fits[-1][2].n_ends
+    # Systematic errors are common to all sweeps of one bench and cancel in
+    # the slope, so the points carry their statistical errors only.
     hist = fit_history([f.built_length_m for _, _, f in fits], [f.length_m.value for _, _, f in fits],
-                       [f.length_m.stderr for _, _, f in fits], n_ends, sigma)
+                       [f.length_repeatability_m for _, _, f in fits], n_ends, sigma)
     sweep, d, af = fits[-1]
     advice = advise_trim(af, d.target.frequency_hz, criterion=d.target.criterion,
                          tolerance_pct=args.tolerance, vswr_limit=d.target.vswr_limit,
