@@ -19,6 +19,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from . import diagnose_signatures as sig
+from . import features
 # Re-exported: callers and tests import these names from fieldcheck.diagnose.
 from .diagnose_observe import (  # noqa: F401
     DELAY_FIT_RMS_MAX, DETREND_DEGREE, RIPPLE_MIN_CYCLES_FIT, RIPPLE_MIN_CYCLES_MODEL_FREE,
@@ -196,4 +197,19 @@ def diagnose(sweep: Sweep, desc=None, *, raw_sweep: Sweep | None = None,
         raise InputError("the raw sweep and the sweep at the antenna must share one frequency "
                          "grid", sweep.source)
     o = observe(sweep, desc, raw_sweep=raw_sweep, cable_vf=cable_vf, cable=cable)
-    return Diagnosis(causes=rank(o), summary=_summary(o), notes=o.notes)
+    return Diagnosis(causes=rank(o), summary=_summary(o), notes=o.notes + _target_note(sweep, desc))
+
+
+def _target_note(sweep: Sweep, desc) -> tuple:
+    """Where the best match sits against the target: a sound antenna can still be off target."""
+    target = getattr(getattr(desc, "target", None), "frequency_hz", None)
+    if not target:
+        return ()
+    best = features.best_match(sweep)
+    off = 100 * (best.f_hz / target - 1)
+    if abs(off) < 0.3:
+        return (f"best match {best.f_hz / 1e6:.6g} MHz is on the {target / 1e6:.6g} MHz target "
+                f"({off:+.2f} %)",)
+    return (f"best match {best.f_hz / 1e6:.6g} MHz is {off:+.2f} % from the {target / 1e6:.6g} MHz "
+            f"target: the antenna is {'long' if off < 0 else 'short'} for it; 'fieldcheck trim' "
+            "gives the change",)

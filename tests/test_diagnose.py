@@ -346,3 +346,14 @@ def test_cli_bad_inputs_exit_2(argv, open_cable_file, capsys):
     err = capsys.readouterr().err
     assert code == 2
     assert err.startswith("fieldcheck: error:") and err.count("\n") == 1
+
+
+def test_a_sound_antenna_off_target_is_called_long_and_sent_to_trim():
+    # Same healthy simulated antenna; a target 4 % above its match makes it "long".
+    sim, ant = _simulated(None, 3)
+    from fieldcheck.features import best_match
+    target = best_match(ant).f_hz * 1.04
+    desc = _desc(target=f"{target:.0f}Hz")
+    d = diagnose(ant, desc, raw_sweep=sim.sweep, cable=CABLE)
+    note = [n for n in d.notes if "target" in n]
+    assert note and "long" in note[0] and "fieldcheck trim" in note[0]
