@@ -469,35 +469,3 @@ def _propagate(fun, values, names, cov, stderr) -> float:
         # vanishes): its uncertainty is undefined, and says so.
         return float("nan")
     return float(np.sqrt(max(grad @ cov @ grad, 0.0)))
-
-
-@dataclass(frozen=True)
-class ShiftBudget:
-    """Why the resonance differs from the as-built design, split into parts (Hz).
-
-    design_hz: bare perfect wire at the as-built length (MoM).
-    length_part_hz: from the electrical length differing from the built one
-        (length error, end effect of insulation or end fittings, velocity factor).
-    feed_part_hz: from the fitted feed capacitance and loss resistance.
-    """
-
-    design_hz: float
-    measured_hz: float
-    length_part_hz: float
-    feed_part_hz: float
-
-    def to_dict(self) -> dict:
-        return {"design_hz": self.design_hz, "measured_hz": self.measured_hz,
-                "length_part_hz": self.length_part_hz, "feed_part_hz": self.feed_part_hz}
-
-
-def explain_shift(af: AntennaFit) -> ShiftBudget | None:
-    """Split resonance(fitted) - resonance(design) into length and feed parts (None without a resonance)."""
-    if af.f_res_hz is None:
-        return None
-    v = af.fit.values
-    f_fit = af.f_res_hz.value
-    f_design = model_resonance_hz(af.model, af.built_length_m, 0.0, 0.0, f_fit)
-    f_len = model_resonance_hz(af.model, v["length_m"], 0.0, 0.0, f_fit)
-    return ShiftBudget(design_hz=f_design, measured_hz=f_fit,
-                       length_part_hz=f_len - f_design, feed_part_hz=f_fit - f_len)

@@ -23,7 +23,6 @@ Faults (:data:`FAULTS`) and their documented signatures are listed in
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field, replace
 
 import numpy as np
@@ -41,6 +40,7 @@ from .bench_effects import (CAL_FAULT_DIRECTIVITY, CAL_FAULT_STEP, CAL_FAULT_STE
 from .constants import C0_M_PER_S, TWO_PI
 from .errors import InputError
 from .physics import installation as inst
+from .physics.insulation import insulation_length_factor
 from .physics.loss import loss_resistance_from_current, radiation_efficiency
 from .physics.materials import get_material
 from .physics.mom import L_OVER_A_MIN, solve_dipole
@@ -52,62 +52,6 @@ __all__ = ["BenchEffects", "Fault", "FAULTS", "LABEL", "SimulatedSweep", "insula
            "simulate_antenna_z", "simulate_sweep", "write_touchstone"]
 
 # ---- insulation ------------------------------------------------------------------
-
-def insulation_length_factor(f_hz, length_m: float, radius_m: float, thickness_m: float,
-                             permittivity: float):
-    """Electrical lengthening of a dielectric-coated wire (>= 1, dimensionless).
-
-    The coating acts as a series inductance per unit length along the wire
-    (J. H. Richmond and E. H. Newman, "Dielectric coated wire antennas", Radio
-    Science 11(1), 13-20, 1976; from memory)::
-
-        L_d = (mu0 / 2 pi) (1 - 1 / eps_r) ln(b / a),   b = a + thickness,
-
-    which adds to the wire's own inductance per unit length taken from
-    Schelkunoff's average characteristic impedance of a cylindrical antenna,
-    Z_a = 120 (ln(L / a) - 1) ohm for the whole wire (S. A. Schelkunoff and
-    H. T. Friis, Antennas: Theory and Practice, 1952; from memory), i.e.
-    (mu0 / 2 pi)(ln(L / a) - 1) per arm.  The phase constant along the wire
-    then grows by ``sqrt(1 + L_d / L_wire)``, which is the factor returned.
-
-    It is a transmission-line approximation used only by the simulator for
-    demos; the fitter does not know it (it sees a longer electrical length).
-    In this approximation the factor does not depend on frequency; ``f_hz`` sets
-    the shape of the result.  PVC on 1.5 mm wire gives about 2-3 %, inside the
-    common handbook rule that insulated wire resonates 2-5 % lower (common
-    practice, no source).
-
-    Parameters
-    ----------
-    f_hz : float or array of float
-        Frequencies, Hz.
-    length_m : float
-        Total wire length, m (a monopole: twice its height, the image dipole).
-    radius_m : float
-        Conductor radius a, m.
-    thickness_m : float
-        Radial jacket thickness, m, >= 0 (0: bare wire, factor 1).
-    permittivity : float
-        Relative permittivity of the jacket, >= 1.
-
-    Returns
-    -------
-    float or ndarray
-        Factor F: electrical length = physical length x F.
-    """
-    f = np.asarray(f_hz, dtype=float)
-    if not (math.isfinite(length_m) and math.isfinite(radius_m) and 0 < 2 * radius_m < length_m):
-        raise InputError(f"insulated wire: need 0 < 2 radius < length; got radius {radius_m!r} m, "
-                         f"length {length_m!r} m")
-    if not (math.isfinite(thickness_m) and thickness_m >= 0):
-        raise InputError(f"insulation thickness must be >= 0 m; got {thickness_m!r}")
-    if not (math.isfinite(permittivity) and permittivity >= 1):
-        raise InputError(f"insulation permittivity must be >= 1; got {permittivity!r}")
-    wire_log = math.log(length_m / radius_m) - 1.0
-    coat_log = (1.0 - 1.0 / permittivity) * math.log1p(thickness_m / radius_m)
-    factor = math.sqrt(1.0 + coat_log / wire_log)
-    return np.full(f.shape, factor) if f.ndim else factor
-
 
 # ---- the antenna itself ----------------------------------------------------------
 

@@ -12,7 +12,8 @@ import pytest
 from numpy.testing import assert_allclose
 
 from fieldcheck.antenna import description_from_options
-from fieldcheck.antenna_fit import explain_shift, fit_antenna
+from fieldcheck.antenna_fit import fit_antenna
+from fieldcheck.explain import explain_shift
 from fieldcheck.errors import AdviceRefused, FitError
 from fieldcheck.model import model_from_description
 from fieldcheck.physics.mom import dipole_impedance
@@ -134,9 +135,20 @@ def test_shift_budget_adds_up():
     f = np.linspace(120e6, 170e6, 401)
     af = fit_antenna(_sweep(d, TRUTH, f, 0.001, 8), d)
     s = explain_shift(af)
-    assert_allclose(s.design_hz + s.length_part_hz + s.feed_part_hz, s.measured_hz, rtol=1e-12)
+    assert_allclose(s.half_wave_hz + s.thickness_part_hz + s.insulation_part_hz + s.length_part_hz
+                    + s.feed_part_hz, s.measured_hz, rtol=1e-12)
     # Electrically longer than built -> the length part lowers the resonance.
     assert s.length_part_hz < 0
+    # A wire of finite thickness resonates below c / 2L (the end effect; Balanis, Antenna
+    # Theory, 4th ed., section 8.3: resonant length below half a wavelength).
+    assert s.thickness_part_hz < 0
+    # A PVC jacket (eps_r 3.5, 0.5 mm on 2 mm wire) lowers it further: a few percent
+    # (common practice, no source: insulated wire resonates 2-5 % lower).
+    from fieldcheck.antenna import Insulation
+    j = explain_shift(af, Insulation(0.5e-3, 3.5))
+    assert -0.06 < j.insulation_part_hz / j.design_hz < -0.01
+    assert_allclose(j.design_hz + j.insulation_part_hz + j.length_part_hz, s.design_hz + s.length_part_hz,
+                    rtol=1e-12)
 
 
 def test_fixing_the_delay_pins_the_terminal_resonance():

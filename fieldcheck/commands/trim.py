@@ -5,7 +5,8 @@ from __future__ import annotations
 from dataclasses import replace
 
 from .. import antenna as antenna_mod
-from ..antenna_fit import explain_shift, fit_antenna
+from ..antenna_fit import fit_antenna
+from ..explain import explain_shift
 from ..errors import InputError
 from ..history import DEFAULT_LENGTH_SIGMA_M, fit_history
 from ..report.trim_text import render_trim
@@ -109,7 +110,7 @@ def _plot(args, sweep, af, advice, desc):
 
 
 def _emit(args, source, desc, af, advice, hist):
-    shift = explain_shift(af)
+    shift = explain_shift(af, desc.antenna.insulation)
     if args.json:
         out = {
             "source": source,

@@ -65,14 +65,23 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
     lines += table(rows)
     if shift is not None:
         lines.append("")
-        lines.append("Why it differs from the design")
-        lines += table([
-            ("design (bare wire, as built)", mhz(shift.design_hz)),
-            ("from electrical length", f"{shift.length_part_hz / 1e6:+.3f} MHz (length error, end effect, "
-                                       "insulation, supports)"),
-            ("from the feed (C, loss)", f"{shift.feed_part_hz / 1e6:+.3f} MHz"),
+        lines.append("Why it resonates where it does (resonance, step by step)")
+        rows = [
+            ("half-wave of the built length", f"{mhz(shift.half_wave_hz)} (c / 2L, infinitely thin wire)"),
+            ("wire thickness (end effect)" if af.model.installation.kind == "free"
+             else "thickness and ground", f"{shift.thickness_part_hz / 1e6:+.3f} MHz -> "
+                                           f"{mhz(shift.design_hz)} (bare wire as built and installed, "
+                                           "method of moments)"),
+        ]
+        if shift.insulation_part_hz:
+            rows.append(("insulation (estimate)", f"{shift.insulation_part_hz / 1e6:+.3f} MHz"))
+        rows += [
+            ("remaining length difference", f"{shift.length_part_hz / 1e6:+.3f} MHz (length error, "
+                                            "end fittings, supports, nearby objects)"),
+            ("feed (C, shunt, loss)", f"{shift.feed_part_hz / 1e6:+.3f} MHz"),
             ("fitted resonance", mhz(shift.measured_hz)),
-        ])
+        ]
+        lines += table(rows)
     if history is not None:
         lines.append("")
         lines.append("Trim history")
