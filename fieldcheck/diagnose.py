@@ -65,11 +65,15 @@ class Diagnosis:
         Key numbers behind the causes, SI units in the key names.
     notes : tuple of str
         What could not be checked, and why.
+    target : str
+        Where the best match sits against the description's target ("" without one):
+        a sound antenna can still be long or short for its target.
     """
 
     causes: tuple
     summary: dict = field(default_factory=dict)
     notes: tuple = ()
+    target: str = ""
 
     @property
     def top(self) -> Cause:
@@ -77,7 +81,7 @@ class Diagnosis:
 
     def to_dict(self) -> dict:
         return {"causes": [c.to_dict() for c in self.causes], "summary": dict(self.summary),
-                "notes": list(self.notes)}
+                "notes": list(self.notes), "target": self.target}
 
 
 # ---- ranking -----------------------------------------------------------------------
@@ -197,19 +201,18 @@ def diagnose(sweep: Sweep, desc=None, *, raw_sweep: Sweep | None = None,
         raise InputError("the raw sweep and the sweep at the antenna must share one frequency "
                          "grid", sweep.source)
     o = observe(sweep, desc, raw_sweep=raw_sweep, cable_vf=cable_vf, cable=cable)
-    return Diagnosis(causes=rank(o), summary=_summary(o), notes=o.notes + _target_note(sweep, desc))
+    return Diagnosis(causes=rank(o), summary=_summary(o), notes=o.notes, target=_target_note(sweep, desc))
 
 
-def _target_note(sweep: Sweep, desc) -> tuple:
+def _target_note(sweep: Sweep, desc) -> str:
     """Where the best match sits against the target: a sound antenna can still be off target."""
     target = getattr(getattr(desc, "target", None), "frequency_hz", None)
     if not target:
-        return ()
+        return ""
     best = features.best_match(sweep)
     off = 100 * (best.f_hz / target - 1)
     if abs(off) < 0.3:
-        return (f"best match {best.f_hz / 1e6:.6g} MHz is on the {target / 1e6:.6g} MHz target "
-                f"({off:+.2f} %)",)
+        return f"best match {best.f_hz / 1e6:.6g} MHz is on the {target / 1e6:.6g} MHz target ({off:+.2f} %)"
     return (f"best match {best.f_hz / 1e6:.6g} MHz is {off:+.2f} % from the {target / 1e6:.6g} MHz "
             f"target: the antenna is {'long' if off < 0 else 'short'} for it; 'fieldcheck trim' "
-            "gives the change",)
+            "gives the change")

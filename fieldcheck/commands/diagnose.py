@@ -86,7 +86,10 @@ def render_text(d: dict) -> str:
         a = ant["antenna"]
         what = (f"{a['name'] + ', ' if a['name'] else ''}{a['form']}, "
                 f"{a['total_length_m'] * 1e3:.1f} mm, diameter {a['diameter_m'] * 1e3:g} mm")
-    lines = [f"file      {d['source']}", f"antenna   {what}", ""]
+    lines = [f"file      {d['source']}", f"antenna   {what}"]
+    if d.get("target"):
+        lines.append(f"target    {d['target']}")
+    lines.append("")
     for i, c in enumerate(d["causes"], 1):
         lines.append(f"{i}. {c['title']}  ({100 * c['confidence']:.0f} %)")
         for e in c["evidence"]:
