@@ -116,3 +116,13 @@ def test_noise_chatter_at_a_crossing_counts_once():
     xs = reactance_crossings(f, z)
     assert len(xs) == 1 and xs[0].kind == "series"
     assert abs(xs[0].f_hz - 1.5e6) < 3 * (f[1] - f[0])
+
+
+def test_inspect_plot_writes_a_png(tmp_path, capsys):
+    f = np.linspace(80e6, 120e6, 101)
+    z = _series_rlc_z(f)
+    path = _write_s1p(tmp_path, f, (z - 50) / (z + 50))
+    png = tmp_path / "sweep.png"
+    assert main(["inspect", str(path), "--plot", str(png)]) == 0
+    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (PNG spec, section 5.2)
+    assert main(["inspect", str(path), "--plot", str(tmp_path / "missing" / "x.png")]) == 2

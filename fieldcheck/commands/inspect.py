@@ -30,6 +30,9 @@ def add_arguments(p):
     p.add_argument("--vswr-limit", type=float, default=2.0, metavar="V",
                    help="VSWR limit for the bandwidth figure (default 2.0)")
     _common.add_output_arguments(p)
+    p.add_argument("--plot", default=None, metavar="FILE.png",
+                   help="also draw return loss and a Smith chart (at the antenna terminals, after "
+                        "any reference-plane removal) to a PNG file")
 
 
 def summarise(sweep, vswr_limit: float = 2.0) -> dict:
@@ -110,4 +113,9 @@ def run(args) -> int:
         _common.emit_json(summary)
     else:
         print(render_text(summary))
+    if args.plot:
+        from ..report.plots import plot_sweep
+
+        plot_sweep(args.plot, sweep.f_hz, sweep.s11, f"fieldcheck inspect: {sweep.source}",
+                   args.vswr_limit)
     return 0

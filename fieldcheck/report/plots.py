@@ -49,3 +49,44 @@ def plot_trim(path: str, curves, title: str, headline: str) -> None:
                          path) from exc
     finally:
         plt.close(fig)
+
+
+def plot_sweep(path: str, f_hz, gamma, title: str, vswr_limit: float = 2.0) -> None:
+    """Return loss against frequency and the Smith chart of a sweep, to ``path`` (PNG).
+
+    ``gamma`` is the reflection at the plane being shown (after any reference-plane
+    removal); the Smith grid is scikit-rf's.
+    """
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    import numpy as np
+    from skrf.plotting import smith
+
+    f_mhz = np.asarray(f_hz) / 1e6
+    g = np.asarray(gamma)
+    fig, (ax1, ax2) = plt.subplots(1, 2, figsize=(11.0, 5.0), gridspec_kw={"width_ratios": [3, 2]})
+    fig.suptitle(title, fontsize=10)
+    with np.errstate(divide="ignore"):
+        ax1.plot(f_mhz, -20 * np.log10(np.abs(g)), color="0.2", lw=1.2)
+    rl_limit = -20 * math.log10((vswr_limit - 1) / (vswr_limit + 1))
+    ax1.axhline(rl_limit, color="tab:red", lw=0.8, ls=":", label=f"VSWR {vswr_limit:g}")
+    ax1.invert_yaxis()
+    ax1.set_xlabel("frequency, MHz")
+    ax1.set_ylabel("return loss, dB")
+    ax1.grid(alpha=0.3)
+    ax1.legend(fontsize=8)
+    smith(ax=ax2, draw_labels=True, draw_vswr=[vswr_limit])
+    ax2.plot(g.real, g.imag, color="tab:blue", lw=1.2)
+    ax2.plot(g.real[:1], g.imag[:1], "o", color="tab:green", ms=4, label=f"{f_mhz[0]:.6g} MHz")
+    ax2.plot(g.real[-1:], g.imag[-1:], "s", color="tab:red", ms=4, label=f"{f_mhz[-1]:.6g} MHz")
+    ax2.legend(fontsize=8, loc="lower left")
+    fig.tight_layout()
+    try:
+        fig.savefig(path, dpi=110)
+    except OSError as exc:
+        raise InputError(f"cannot write the plot: {exc.strerror or exc}; choose a writable path",
+                         path) from exc
+    finally:
+        plt.close(fig)
