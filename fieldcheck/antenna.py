@@ -70,6 +70,7 @@ from .antenna_options import (OPTION_FOR_KEY, OPTION_KEYWORDS,  # noqa: F401
 from .antenna_spec import AntennaSpec, Description, FeedSpec, Insulation, TargetSpec
 from .errors import InputError, SpecError
 from .physics.installation import Installation
+from .physics.materials import known_materials
 from .toml_lines import find_line, key_lines
 from .units import parse_frequency_hz, parse_length_m
 
@@ -273,6 +274,12 @@ def _antenna(ctx: _Ctx) -> AntennaSpec:
                            "a jacket has 2..4, e.g. PE 2.3, PTFE 2.1, PVC 3..4")
         ins = Insulation(t_m, eps)
     material = (_text(ctx, "antenna.material", "copper") or "copper").lower()
+    if material not in known_materials():
+        # A typo here would silently drop the conductor-loss estimate later.
+        close = difflib.get_close_matches(material, known_materials(), n=1)
+        hint = f" (did you mean {close[0]!r}?)" if close else ""
+        raise ctx.fail("antenna.material", f"{material!r} is not a known conductor{hint}: use one of "
+                       f"{', '.join(known_materials())}")
     name = v.get("antenna.name", "")
     if not isinstance(name, str):
         raise ctx.fail("antenna.name", f"expected quoted text; got {name!r}")

@@ -74,3 +74,22 @@ def explain_shift(af: AntennaFit, insulation=None) -> ShiftBudget | None:
                        insulation_part_hz=f_jacket - f_design, length_part_hz=f_len - f_jacket,
                        feed_part_hz=f_full - f_len, measured_hz=f_full)
 
+
+
+def conductor_loss_ohm(af: AntennaFit, material_name: str) -> float:
+    """Skin-effect loss of the wire itself at the fitted resonance (or best match), ohm.
+
+    From the method-of-moments current of the as-built wire and the material's
+    conductivity (:func:`fieldcheck.physics.loss.installed_conductor_loss_ohm`);
+    set beside the fitted loss resistance, the difference is loss the wire
+    cannot explain (joints, balun, ground, nearby lossy objects).
+    """
+    import numpy as np
+
+    from .physics.loss import installed_conductor_loss_ohm
+    from .physics.materials import get_material
+
+    f_ref = af.f_res_hz.value if af.f_res_hz is not None else af.f_match_hz
+    m = af.model
+    return float(installed_conductor_loss_ohm(np.array([f_ref]), af.built_length_m, m.radius_m,
+                                              m.installation, get_material(material_name))[0])

@@ -182,6 +182,7 @@ BAD = [
     ("bad_criterion.toml", 10, "target.criterion", "not one of"),
     ("bad_vswr_limit.toml", 10, "target.vswr_limit", "greater than 1"),  # Pozar: VSWR >= 1
     ("bad_balun.toml", 12, "feed.balun", "not one of"),
+    ("bad_material.toml", 6, "antenna.material", "did you mean 'copper'"),
     ("bad_system_impedance.toml", 12, "feed.system_impedance", "greater than zero"),
     ("bad_system_impedance_text.toml", 12, "feed.system_impedance", "plain number"),
     ("bad_fixture_missing.toml", 12, "feed.fixture", "relative to the description file"),

@@ -139,3 +139,15 @@ def test_json_states_amount_and_direction_unambiguously(tmp_path, capsys):
     assert adv["action"] == "add"
     assert adv["amount_per_arm_m"] > 0 and adv["per_arm_m"] == -adv["amount_per_arm_m"]
     assert adv["amount_total_m"] == pytest.approx(2 * adv["amount_per_arm_m"])
+
+
+def test_fitted_loss_is_set_beside_the_wire_s_own_skin_effect_loss(tmp_path, capsys):
+    # Half-wave 2 mm copper dipole near 146 MHz: about 0.26 ohm of skin-effect loss
+    # (R_s L / (4 pi a) for a sinusoidal current, Balanis, Antenna Theory, 4th ed.,
+    # eq. 2-90b, with copper at 5.8e7 S/m; the MoM current gives a little more).
+    p = _write(tmp_path, "a", 1.03)
+    assert main(["trim", p, *OPTS, "--arm", "510mm", "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert 0.2 < out["conductor_loss_ohm"] < 0.35
+    assert main(["trim", p, *OPTS, "--arm", "510mm"]) == 0
+    assert "copper wire alone" in capsys.readouterr().out

@@ -6,7 +6,7 @@ from dataclasses import replace
 
 from .. import antenna as antenna_mod
 from ..antenna_fit import fit_antenna
-from ..explain import explain_shift
+from ..explain import conductor_loss_ohm, explain_shift
 from ..errors import InputError
 from ..history import DEFAULT_LENGTH_SIGMA_M, fit_history
 from ..report.trim_text import render_trim
@@ -111,11 +111,13 @@ def _plot(args, sweep, af, advice, desc):
 
 def _emit(args, source, desc, af, advice, hist):
     shift = explain_shift(af, desc.antenna.insulation)
+    r_wire = conductor_loss_ohm(af, desc.antenna.material)
     if args.json:
         out = {
             "source": source,
             "advice": advice.to_dict(),
             "fit": af.to_dict(),
+            "conductor_loss_ohm": r_wire,
             "shift": shift.to_dict() if shift else None,
             "antenna": desc.to_dict(),
         }
@@ -123,7 +125,8 @@ def _emit(args, source, desc, af, advice, hist):
             out["history"] = hist.to_dict()
         _common.emit_json(out)
     else:
-        print(render_trim(source, af, advice, shift, hist))
+        print(render_trim(source, af, advice, shift, hist,
+                          conductor=(desc.antenna.material, r_wire)))
 
 
 def _parse_arm_lengths(text, n_sweeps):

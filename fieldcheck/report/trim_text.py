@@ -6,8 +6,9 @@ from ..constants import C0_M_PER_S
 from .text import SAFETY_TRIM, mhz, mhz_pm, mm, signed_mm, table
 
 
-def render_trim(source: str, af, advice, shift, history=None) -> str:
-    """Format a trim result.  ``af`` AntennaFit, ``advice`` TrimAdvice, ``shift`` ShiftBudget."""
+def render_trim(source: str, af, advice, shift, history=None, conductor=None) -> str:
+    """Format a trim result.  ``af`` AntennaFit, ``advice`` TrimAdvice, ``shift`` ShiftBudget,
+    ``conductor`` (material name, its skin-effect loss in ohm) for comparison with the fit."""
     v, e = af.fit.values, af.fit.stderr
     n = advice.n_ends
     arm = "per arm" if n == 2 else "on the element"
@@ -54,7 +55,8 @@ def render_trim(source: str, af, advice, shift, history=None) -> str:
                               f"{mm(af.built_length_m)} ({'tip to tip' if n == 2 else 'height'})"),
         ("difference", f"{signed_mm(af.length_error_m.value)} total = "
                        f"{signed_mm(af.end_correction_per_end_m.value)} per end"),
-        ("loss resistance", f"{v['r_loss_ohm']:.2f} ± {e['r_loss_ohm']:.2f} ohm"),
+        ("loss resistance", f"{v['r_loss_ohm']:.2f} ± {e['r_loss_ohm']:.2f} ohm"
+                            + (f" (the {conductor[0]} wire alone: {conductor[1]:.2f} ohm)" if conductor else "")),
         ("radiation efficiency", f"{af.efficiency.value * 100:.1f} % ± {af.efficiency.stderr * 100:.1f} %"),
         ("feed capacitance", f"{v['c_feed_f'] * 1e12:.2f} ± {e['c_feed_f'] * 1e12:.2f} pF"),
         ("feed shunt loss", f"{_shunt_ohm(v['g_feed_s'])} shunt, {af.feed_shunt_loss * 100:.1f} % of the power"),
