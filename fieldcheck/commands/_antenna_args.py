@@ -18,8 +18,8 @@ _OPTIONS = (
     ("--length", "length", "LENGTH", "dipole only, instead of --arm: tip to tip including "
      "the feed gap, e.g. 994mm"),
     ("--diameter", "diameter", "LENGTH", "bare conductor diameter, e.g. 2.0mm"),
-    ("--material", "material", "NAME", "conductor: copper, aluminium, brass, steel, "
-     "stainless, copper-clad-steel"),
+    ("--material", "material", "NAME", "conductor: copper (default), silver, aluminium, "
+     "aluminium-6061, brass, steel, stainless-304, copper-clad-steel"),
     ("--gap", "gap", "LENGTH", "feed gap between the arms (monopole: base to plane), "
      "default 0mm"),
     ("--insulation", "insulation", "THICKNESS:EPSR", "wire jacket, e.g. 0.4mm:2.3, or none"),
