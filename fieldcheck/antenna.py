@@ -21,7 +21,8 @@ Schema, with every key (only ``form``, ``arm_length`` or ``total_length``,
     # total_length = "994 mm"      # dipole only, instead of arm_length: tip to tip
                                    # INCLUDING the feed gap
     diameter = "2.0 mm"            # bare conductor diameter
-    material = "copper"            # kept lower-cased (default "copper")
+    material = "copper"            # copper (default), silver, aluminium, aluminium-6061,
+                                   # brass, steel, stainless-304, copper-clad-steel
     feed_gap = "10 mm"             # default 0 mm; monopole: element base to plane
     [antenna.insulation]           # omit for bare wire
     thickness = "0.4 mm"           # radial thickness of the jacket
