@@ -91,6 +91,12 @@ def run_case(case: dict) -> dict:
     f_t = case["f_t"]
     f = np.linspace(0.8 * f_t, 1.25 * f_t, 401)
     effects = BenchEffects.typical(rng)
+    fixed = None
+    if case.get("deembedded") and case["criterion"] == "resonance":
+        # The user removed the balun and feed hardware with a measured fixture
+        # and says so with --fix delay: no hardware line, shunt C or extra delay.
+        effects = replace(effects, balun_line_m=0.0, balun_shunt_c_f=0.0, extra_delay_s=0.0)
+        fixed = {"delay_s": 0.0}
     out = {"seed": case["seed"], "f_t": f_t, "criterion": case["criterion"], "form": desc.antenna.form,
            "opts": case["opts"], "rounds": 0}
     key = "f_match_hz" if case["criterion"] == "match" else "f_res_terminals_hz"
@@ -104,7 +110,7 @@ def run_case(case: dict) -> dict:
         raw = read_sweep(path)
         try:
             sweep = apply_from_options(raw, cable=desc.feed.cable)
-            af = fit_antenna(sweep, desc)
+            af = fit_antenna(sweep, desc, fixed=fixed)
             adv = advise_trim(af, f_t, criterion=case["criterion"])
         except FieldcheckError as exc:
             out["refused"] = str(exc)
@@ -169,9 +175,13 @@ def main(argv=None) -> int:
     ap.add_argument("--seed", type=int, default=1)
     ap.add_argument("--processes", type=int, default=2)
     ap.add_argument("--dump", default=None, help="write every case's result to this JSON file")
+    ap.add_argument("--deembedded", action="store_true",
+                    help="X = 0 cases: the balun/feed hardware is removed with a fixture and the "
+                         "delay held (--fix delay), as a careful user would do for that criterion")
     args = ap.parse_args(argv)
     workdir = tempfile.mkdtemp(prefix="fieldcheck-bench-")
-    cases = [dict(draw_case(args.seed * 100_000 + i), workdir=workdir) for i in range(args.n)]
+    cases = [dict(draw_case(args.seed * 100_000 + i), workdir=workdir, deembedded=args.deembedded)
+             for i in range(args.n)]
     t0 = time.perf_counter()
     with Pool(args.processes) as pool:
         results = pool.map(run_case, cases)
