@@ -342,13 +342,14 @@ def cut_resolution_m(arm_m: float) -> float:
 def _predict(af: AntennaFit, length_m: float, target_hz: float, vswr_limit: float) -> Predicted:
     v = af.fit.values
     fd = feed_of(v)
+    model = _predicting(af)
     try:
-        f_res = resonance_of(_predicting(af), length_m, v, target_hz)
+        f_res = resonance_of(model, length_m, v, target_hz)
     except FitError:
         f_res = None
-    f_match = match_of(_predicting(af), length_m, v, target_hz)
-    gamma = lambda f: _predicting(af).gamma(f, length_m, fd["r_loss_ohm"], fd["c_feed_f"], 0.0,  # noqa: E731
-                                            fd["g_feed_s"])
+    f_match = match_of(model, length_m, v, target_hz)
+    gamma = lambda f: model.gamma(f, length_m, fd["r_loss_ohm"], fd["c_feed_f"], 0.0,  # noqa: E731
+                                  fd["g_feed_s"])
     g_t = gamma(np.array([target_hz]))[0]
     f = target_hz * np.linspace(0.75, 1.25, 1001)
     bands = vswr_bands(f, gamma(f), vswr_limit)

@@ -41,14 +41,7 @@ def plot_trim(path: str, curves, title: str, headline: str) -> None:
     ax2.legend(fontsize=8, loc="best")
     lim = max(200.0, 1.2 * float(max(abs(c.r_model_ohm).max(), abs(c.x_model_ohm).max())))
     ax2.set_ylim(-min(lim, 600), min(lim, 600))
-    fig.tight_layout()
-    try:
-        fig.savefig(path, dpi=110)
-    except OSError as exc:
-        raise InputError(f"cannot write the plot: {exc.strerror or exc}; choose a writable path",
-                         path) from exc
-    finally:
-        plt.close(fig)
+    _save(fig, path)
 
 
 def plot_sweep(path: str, f_hz, gamma, title: str, vswr_limit: float = 2.0) -> None:
@@ -82,6 +75,13 @@ def plot_sweep(path: str, f_hz, gamma, title: str, vswr_limit: float = 2.0) -> N
     ax2.plot(g.real[:1], g.imag[:1], "o", color="tab:green", ms=4, label=f"{f_mhz[0]:.6g} MHz")
     ax2.plot(g.real[-1:], g.imag[-1:], "s", color="tab:red", ms=4, label=f"{f_mhz[-1]:.6g} MHz")
     ax2.legend(fontsize=8, loc="lower left")
+    _save(fig, path)
+
+
+def _save(fig, path: str) -> None:
+    """Write ``fig`` as PNG and always release it; an unwritable path is the user's to fix."""
+    import matplotlib.pyplot as plt
+
     fig.tight_layout()
     try:
         fig.savefig(path, dpi=110)
